@@ -1,0 +1,14 @@
+//! # rungs
+//!
+//! Bound vibrational-rotational levels, wavefunctions and spectroscopic quantities of diatomic
+//! potential-energy curves.
+//!
+//! Data flow, one way: [`reader`] (curve files, points, analytic models, units, masses) ->
+//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`]) -> [`report`] (tables,
+//! CSV, JSON). Each stage knows nothing of the stages after it. Inside the library every number
+//! is in Hartree atomic units (see [`units`]).
+
+pub mod curve;
+pub mod masses;
+pub mod reader;
+pub mod units;
