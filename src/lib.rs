@@ -11,4 +11,5 @@
 pub mod curve;
 pub mod masses;
 pub mod reader;
+pub mod solver;
 pub mod units;

@@ -1,0 +1,111 @@
+//! Uniform radial grids and the choice of their bounds and spacing.
+//!
+//! Bounds: inward, the grid starts where the WKB decay integral int kappa dr, kappa =
+//! sqrt(2 mu (V_eff - E)), measured from the inner turning point of the highest energy sought
+//! reaches [`DECAY_TARGET`] (the amplitude has fallen by e^-30), or earlier if the wall grows
+//! so steep that the Numerov factor h^2 Q / 12 would exceed 1/2. Outward, a level at energy E
+//! needs the same decay integral past its outer turning point. Spacing: a fixed number of
+//! points per local de Broglie wavelength 2 pi / sqrt(2 mu (E - V_eff)) at the deepest point.
+
+use super::RadialProblem;
+
+/// Amplitude decay, as int kappa dr, demanded at both ends of a grid. e^-30 ~ 1e-13 in the
+/// amplitude, 1e-26 in the probability: far below any energy tolerance.
+pub const DECAY_TARGET: f64 = 30.0;
+
+/// A uniform grid r_i = start + i * step, i = 0 ..= intervals, with psi = 0 at both ends.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct UniformGrid {
+    pub start: f64,
+    pub step: f64,
+    pub intervals: usize,
+}
+
+impl UniformGrid {
+    pub fn end(&self) -> f64 {
+        self.start + self.step * self.intervals as f64
+    }
+    pub fn r(&self, i: usize) -> f64 {
+        self.start + self.step * i as f64
+    }
+    /// The same range with the step divided by `factor`.
+    pub fn refined(&self, factor: usize) -> UniformGrid {
+        UniformGrid {
+            start: self.start,
+            step: self.step / factor as f64,
+            intervals: self.intervals * factor,
+        }
+    }
+    /// Interior points (where psi is unknown).
+    pub fn interior_points(&self) -> usize {
+        self.intervals.saturating_sub(1)
+    }
+}
+
+/// Where the grid starts: inward from the inner turning point of `energy` until the decay
+/// integral reaches the target, the Numerov factor limit is met, or r reaches `floor`.
+pub fn inner_bound(problem: &RadialProblem, energy: f64, inner_turning: f64, step: f64, v_floor: f64) -> f64 {
+    let mu = problem.reduced_mass;
+    let floor = 1e-3 * inner_turning;
+    let mut r = inner_turning;
+    let mut decay = 0.0;
+    let dr = step.min(0.01 * inner_turning);
+    while r - dr > floor {
+        let next = r - dr;
+        let excess = problem.effective(next) - energy;
+        if excess.is_nan() {
+            break;
+        }
+        // Keep h^2 * 2 mu (V - V_floor) / 12 below 1/2 for the coarsest step.
+        if step * step * 2.0 * mu * (problem.effective(next) - v_floor) / 12.0 > 0.5 {
+            break;
+        }
+        decay += (2.0 * mu * excess.max(0.0)).sqrt() * dr;
+        r = next;
+        if decay >= DECAY_TARGET {
+            break;
+        }
+    }
+    r
+}
+
+/// Where a level at `energy` needs the grid to end: past its outer turning point until the
+/// decay integral reaches the target, or `cap`.
+pub fn outer_bound(problem: &RadialProblem, energy: f64, outer_turning: f64, cap: f64) -> f64 {
+    let mu = problem.reduced_mass;
+    let mut r = outer_turning;
+    let mut decay = 0.0;
+    while decay < DECAY_TARGET && r < cap {
+        let kappa = (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
+        // Steps of a tenth of the decay length, at least 0.01 bohr, at most 5% of r.
+        let longest = 0.05 * r.max(1.0);
+        let dr = if kappa > 0.0 { (0.1 / kappa).clamp(0.01f64.min(longest), longest) } else { longest };
+        decay += kappa * dr;
+        r += dr;
+    }
+    r.min(cap)
+}
+
+/// Grid step giving `points_per_wavelength` at the largest local momentum below `energy`.
+pub fn step_for(problem: &RadialProblem, energy: f64, v_floor: f64, points_per_wavelength: f64) -> f64 {
+    let k_max = (2.0 * problem.reduced_mass * (energy - v_floor)).sqrt();
+    2.0 * std::f64::consts::PI / (k_max * points_per_wavelength)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::curve::Morse;
+
+    #[test]
+    fn outer_bound_of_a_deep_level_is_near_its_turning_point() {
+        let morse = Morse::new(0.18, 1.0, 1.4);
+        let problem = RadialProblem::new(&morse, 918.0, 0);
+        let end = outer_bound(&problem, 0.0227, 1.834, 176.0);
+        assert!(end < 5.0, "{end}");
+        // Starting exactly at the turning point, where kappa is nearly zero (a bug once).
+        let turning = 1.4 - (1.0 - (0.0227f64 / 0.18).sqrt()).ln();
+        let end = outer_bound(&problem, 0.0227, turning, 176.0);
+        assert!(end < 5.0, "{end}");
+    }
+}

@@ -1,0 +1,565 @@
+//! Bound levels and wavefunctions of the radial Schroedinger equation
+//!
+//! ```text
+//!   -1/(2 mu) psi'' + [V(r) + (J(J+1) - Omega^2) / (2 mu r^2)] psi = E psi
+//! ```
+//!
+//! (atomic units). Two methods behind one interface: [`Method::Numerov`], the production method
+//! (see [`numerov`] for why and how), and [`Method::SincDvr`], the Colbert-Miller sinc-DVR
+//! (D.T. Colbert and W.H. Miller, J. Chem. Phys. 96, 1982 (1992)) as a dense reference.
+//!
+//! The grid is chosen automatically (see [`grid`]); the user may fix its range and step. Each
+//! level carries its vibrational number v from the Sturm count, an error estimate and a
+//! converged flag against the tolerance; the number of bound levels is stated with the box
+//! that established it. This module knows nothing of post-processing or reports.
+
+mod dvr;
+pub mod grid;
+pub mod numerov;
+
+use crate::curve::{find_well_with, turning_points_with, PotentialCurve, ShapeError};
+use crate::units::from_wavenumber;
+use grid::UniformGrid;
+use numerov::{richardson, NumerovGrid};
+use rayon::prelude::*;
+
+/// The radial problem: a curve, a reduced mass (m_e) and the rotational quantum numbers.
+#[derive(Debug, Clone, Copy)]
+pub struct RadialProblem<'a> {
+    pub curve: &'a dyn PotentialCurve,
+    pub reduced_mass: f64,
+    pub j: u32,
+    /// Projection of the electronic angular momentum on the axis (0 for Sigma states).
+    pub omega: u32,
+}
+
+impl<'a> RadialProblem<'a> {
+    pub fn new(curve: &'a dyn PotentialCurve, reduced_mass: f64, j: u32) -> Self {
+        RadialProblem {
+            curve,
+            reduced_mass,
+            j,
+            omega: 0,
+        }
+    }
+
+    /// (J(J+1) - Omega^2) / (2 mu), hartree bohr^2.
+    pub fn centrifugal_strength(&self) -> f64 {
+        let j = f64::from(self.j);
+        let omega = f64::from(self.omega);
+        (j * (j + 1.0) - omega * omega) / (2.0 * self.reduced_mass)
+    }
+
+    /// V_eff(r) = V(r) + (J(J+1) - Omega^2)/(2 mu r^2), hartree.
+    pub fn effective(&self, r: f64) -> f64 {
+        self.curve.value(r) + self.centrifugal_strength() / (r * r)
+    }
+}
+
+/// Which method solves the radial equation.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Method {
+    /// Numerov with Sturm bisection, Cooley correction and Richardson extrapolation.
+    #[default]
+    Numerov,
+    /// Colbert-Miller sinc-DVR, dense eigensolver (reference; O(N^3)).
+    SincDvr,
+}
+
+/// Tuning knobs. Energies in hartree, lengths in bohr.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub struct SolverSettings {
+    pub method: Method,
+    /// Energy tolerance each level must meet (default 1e-6 cm-1).
+    pub tolerance: f64,
+    /// Fixed grid range instead of the automatic one.
+    pub r_range: Option<(f64, f64)>,
+    /// Fixed grid step (the coarsest of the Richardson sequence for Numerov).
+    pub step: Option<f64>,
+    /// Highest v wanted (default: every bound level).
+    pub highest_v: Option<u32>,
+    /// Energy ceiling above the well floor, for curves with no dissociation limit (default:
+    /// 20 levels of the harmonic estimate).
+    pub ceiling: Option<f64>,
+    /// Keep the wavefunctions.
+    pub keep_wavefunctions: bool,
+    /// Largest outer grid bound the automatic grid may use, bohr.
+    pub outer_cap: f64,
+}
+
+impl Default for SolverSettings {
+    fn default() -> Self {
+        SolverSettings {
+            method: Method::Numerov,
+            tolerance: from_wavenumber(1e-6),
+            r_range: None,
+            step: None,
+            highest_v: None,
+            ceiling: None,
+            keep_wavefunctions: false,
+            outer_cap: 2.0e4,
+        }
+    }
+}
+
+impl SolverSettings {
+    pub fn with_method(mut self, method: Method) -> Self {
+        self.method = method;
+        self
+    }
+    pub fn with_tolerance(mut self, tolerance: f64) -> Self {
+        self.tolerance = tolerance;
+        self
+    }
+    pub fn with_wavefunctions(mut self, keep: bool) -> Self {
+        self.keep_wavefunctions = keep;
+        self
+    }
+    pub fn with_highest_v(mut self, v: Option<u32>) -> Self {
+        self.highest_v = v;
+        self
+    }
+    pub fn with_grid(mut self, r_range: Option<(f64, f64)>, step: Option<f64>) -> Self {
+        self.r_range = r_range;
+        self.step = step;
+        self
+    }
+    pub fn with_ceiling(mut self, ceiling: Option<f64>) -> Self {
+        self.ceiling = ceiling;
+        self
+    }
+}
+
+/// One bound level. Energies in hartree on the curve's own energy scale; lengths in bohr.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Level {
+    pub v: u32,
+    pub j: u32,
+    pub energy: f64,
+    pub error_estimate: f64,
+    pub converged: bool,
+    pub inner_turning_point: f64,
+    pub outer_turning_point: f64,
+    /// <r>, bohr.
+    pub mean_r: f64,
+    /// <r^-2>, bohr^-2.
+    pub mean_inverse_r2: f64,
+    /// B_v = <1/(2 mu r^2)>, hartree.
+    pub rotational_constant: f64,
+}
+
+/// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Wavefunction {
+    pub v: u32,
+    pub r: Vec<f64>,
+    pub psi: Vec<f64>,
+}
+
+/// How the number of bound levels was established.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CountAudit {
+    /// Levels below the dissociation limit (or the ceiling) in the counting box.
+    pub bound_levels: usize,
+    /// Outer end of the counting box, bohr.
+    pub box_outer: f64,
+    /// The count did not change when the box was doubled.
+    pub stable_on_doubling: bool,
+    /// A further level would have to be bound by less than this (hartree) to be missed.
+    pub undetectable_binding: f64,
+}
+
+/// Every level asked for at one J, with what is needed to interpret them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelSet {
+    pub j: u32,
+    pub reduced_mass: f64,
+    pub method: Method,
+    /// The minimum of V(r) (without the centrifugal term), hartree; energies "above the
+    /// minimum" are measured from here.
+    pub curve_minimum: f64,
+    /// V(infinity), hartree, if the curve has one.
+    pub limit: Option<f64>,
+    pub levels: Vec<Level>,
+    pub audit: CountAudit,
+    pub wavefunctions: Vec<Wavefunction>,
+    /// The finest grid used for the least-bound level.
+    pub finest_grid: UniformGrid,
+}
+
+impl LevelSet {
+    /// Levels whose error estimate exceeds the tolerance.
+    pub fn unconverged(&self) -> impl Iterator<Item = &Level> {
+        self.levels.iter().filter(|l| !l.converged)
+    }
+}
+
+/// Problems solving.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SolverError {
+    #[error(transparent)]
+    Shape(#[from] ShapeError),
+    #[error("no level is bound for J = {j}: the effective curve (with the centrifugal term) has no level below its dissociation limit; try a lower J")]
+    NothingBound { j: u32 },
+    #[error("the grid step {step:.4e} bohr is too coarse: the Numerov factor h^2 Q/12 reaches 1 inside the range; use a step below {suggested:.4e} bohr or move r_min outward")]
+    StepTooCoarse { step: f64, suggested: f64 },
+    #[error("the grid step {step:.4e} bohr gives fewer than 4 points per wavelength at the bottom of the well; use a step below {suggested:.4e} bohr")]
+    UnderResolved { step: f64, suggested: f64 },
+    #[error("the grid range {lo:.4} .. {hi:.4} bohr does not contain the well at r = {r_e:.4} bohr")]
+    RangeMissesWell { lo: f64, hi: f64, r_e: f64 },
+    #[error("the reference sinc-DVR would need a {points} x {points} matrix (more than {limit}); use the Numerov method or give a smaller r range")]
+    DvrTooLarge { points: usize, limit: usize },
+    #[error("the dense eigensolver failed: {0}")]
+    Eigensolver(String),
+    #[error("level v = {v} could not be bracketed on the grid ({grid}); the grid is probably too coarse")]
+    Bracket { v: u32, grid: String },
+    #[error("the curve is not finite at r = {r:.6} bohr, inside the grid")]
+    NotFinite { r: f64 },
+}
+
+/// Facts about the effective well shared by both methods.
+#[derive(Debug, Clone, Copy)]
+struct WellFacts {
+    /// Minimum of V_eff, hartree (absolute).
+    floor: f64,
+    r_floor: f64,
+    /// Energy up to which levels are sought, absolute hartree.
+    top: f64,
+    /// True when `top` is the dissociation limit.
+    top_is_limit: bool,
+    curve_minimum: f64,
+}
+
+fn well_facts(problem: &RadialProblem, settings: &SolverSettings) -> Result<WellFacts, SolverError> {
+    let strength = problem.centrifugal_strength();
+    let bare = crate::curve::find_well(problem.curve)?;
+    let effective = find_well_with(problem.curve, &|r| {
+        let r2 = r * r;
+        (strength / r2, -2.0 * strength / (r2 * r), 6.0 * strength / (r2 * r2))
+    })
+    .map_err(|e| match e {
+        ShapeError::NoWell { .. } | ShapeError::LimitBelowMinimum { .. } if problem.j > 0 => {
+            SolverError::NothingBound { j: problem.j }
+        }
+        other => other.into(),
+    })?;
+    let (top, top_is_limit) = match (problem.curve.limit(), settings.ceiling) {
+        (_, Some(ceiling)) => (bare.v_min + ceiling, false),
+        (Some(limit), None) => (limit, true),
+        (None, None) => {
+            let omega = (effective.force_constant / problem.reduced_mass).sqrt();
+            (effective.v_min + 20.0 * omega, false)
+        }
+    };
+    if top <= effective.v_min {
+        return Err(SolverError::NothingBound { j: problem.j });
+    }
+    Ok(WellFacts {
+        floor: effective.v_min,
+        r_floor: effective.r_min,
+        top: top.min(problem.curve.limit().unwrap_or(f64::INFINITY)),
+        top_is_limit,
+        curve_minimum: bare.v_min,
+    })
+}
+
+/// Points per local wavelength of the coarsest Numerov grid (h, h/2, h/4 follow).
+const NUMEROV_POINTS_PER_WAVELENGTH: f64 = 8.0;
+/// Halvings of the coarsest step tried when a level misses the tolerance.
+const MAX_REFINEMENTS: usize = 4;
+
+/// Solve for the bound levels of one J.
+///
+/// ```
+/// use rungs::curve::Morse;
+/// use rungs::solver::{solve, RadialProblem, SolverSettings};
+/// // A Morse curve in atomic units: D_e = 0.17 hartree, a = 1 / bohr, r_e = 1.4 bohr, mu = 918.
+/// let morse = Morse::new(0.17, 1.0, 1.4);
+/// let levels = solve(&RadialProblem::new(&morse, 918.0, 0), &SolverSettings::default()).unwrap();
+/// let exact = morse.exact_level(0, 918.0);
+/// assert!((levels.levels[0].energy - exact).abs() < 1e-10);
+/// assert_eq!(levels.levels.len() as u32, morse.exact_level_count(918.0));
+/// ```
+pub fn solve(problem: &RadialProblem, settings: &SolverSettings) -> Result<LevelSet, SolverError> {
+    let facts = well_facts(problem, settings)?;
+    match settings.method {
+        Method::Numerov => solve_numerov(problem, settings, &facts),
+        Method::SincDvr => dvr::solve_dvr(problem, settings, &facts),
+    }
+}
+
+/// The counting box and coarse grid: range, step, and the audit of the level count.
+struct Counting {
+    coarse: UniformGrid,
+    audit: CountAudit,
+}
+
+fn turning(problem: &RadialProblem, facts: &WellFacts, energy: f64, cap: f64) -> (f64, f64) {
+    let (inner, outer) = turning_points_with(&|r| problem.effective(r), facts.r_floor, energy, 1e-6 * facts.r_floor, cap);
+    (inner.unwrap_or(1e-6 * facts.r_floor), outer.unwrap_or(cap))
+}
+
+fn grid_over(start: f64, end: f64, step: f64) -> UniformGrid {
+    let intervals = ((end - start) / step).ceil().max(4.0) as usize;
+    UniformGrid {
+        start,
+        step: (end - start) / intervals as f64,
+        intervals,
+    }
+}
+
+fn check_grid(problem: &RadialProblem, facts: &WellFacts, grid: &UniformGrid) -> Result<NumerovGrid, SolverError> {
+    let floor = facts.curve_minimum;
+    let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &|r| problem.effective(r) - floor);
+    if let Some(i) = (0..=grid.intervals).find(|&i| !problem.effective(grid.r(i)).is_finite()) {
+        return Err(SolverError::NotFinite { r: grid.r(i) });
+    }
+    if !numerov.factor_is_positive(facts.floor - floor) {
+        let wall = problem.effective(grid.start) - facts.floor;
+        return Err(SolverError::StepTooCoarse {
+            step: grid.step,
+            suggested: (3.0 / (problem.reduced_mass * wall)).sqrt(),
+        });
+    }
+    Ok(numerov)
+}
+
+fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &WellFacts) -> Result<Counting, SolverError> {
+    let depth = facts.top - facts.floor;
+    let auto_step = grid::step_for(problem, facts.top, facts.floor, NUMEROV_POINTS_PER_WAVELENGTH);
+    let step = settings.step.unwrap_or(auto_step);
+    if step > 5.0 * auto_step {
+        return Err(SolverError::UnderResolved {
+            step,
+            suggested: auto_step,
+        });
+    }
+    let cap = settings.outer_cap;
+    let (inner_turning, _) = turning(problem, facts, facts.top, cap);
+    if let Some((lo, hi)) = settings.r_range {
+        if !(lo < facts.r_floor && facts.r_floor < hi) {
+            return Err(SolverError::RangeMissesWell { lo, hi, r_e: facts.r_floor });
+        }
+        let coarse = grid_over(lo, hi, step);
+        let numerov = check_grid(problem, facts, &coarse)?;
+        let bound_levels = numerov.count_below(facts.top - facts.curve_minimum);
+        return Ok(Counting {
+            coarse,
+            audit: CountAudit {
+                bound_levels,
+                box_outer: hi,
+                stable_on_doubling: false,
+                undetectable_binding: f64::NAN,
+            },
+        });
+    }
+    let start = grid::inner_bound(problem, facts.top, inner_turning, step, facts.floor);
+    // Start with the box a level bound by 1e-4 of the depth would need; double until stable.
+    let probe = facts.top - 1e-4 * depth;
+    let (_, probe_outer) = turning(problem, facts, probe, cap);
+    let mut end = grid::outer_bound(problem, probe, probe_outer, cap);
+    let count_at = |end: f64| -> Result<(UniformGrid, usize), SolverError> {
+        let coarse = grid_over(start, end, step);
+        let numerov = check_grid(problem, facts, &coarse)?;
+        Ok((coarse, numerov.count_below(facts.top - facts.curve_minimum)))
+    };
+    let (mut coarse, mut count) = count_at(end)?;
+    let mut stable = !facts.top_is_limit;
+    while facts.top_is_limit && end < cap {
+        let doubled = (start + 2.0 * (end - start)).min(cap);
+        let (wider, wider_count) = count_at(doubled)?;
+        if wider_count == count {
+            stable = true;
+            break;
+        }
+        (coarse, count, end) = (wider, wider_count, doubled);
+    }
+    // A level needing more than twice this box to show would be bound by less than this.
+    let undetectable_binding = if facts.top_is_limit {
+        let reach = 2.0 * (end - start);
+        (grid::DECAY_TARGET / reach).powi(2) / (2.0 * problem.reduced_mass)
+    } else {
+        0.0
+    };
+    Ok(Counting {
+        coarse,
+        audit: CountAudit {
+            bound_levels: count,
+            box_outer: coarse.end(),
+            stable_on_doubling: stable,
+            undetectable_binding,
+        },
+    })
+}
+
+/// Brackets (lo, hi) isolating each of the first `count` levels on a grid (energies relative
+/// to the curve minimum), by recursive bisection on the Sturm count.
+fn isolate_levels(numerov: &NumerovGrid, lo: f64, hi: f64, count: usize) -> Vec<(f64, f64)> {
+    let mut brackets = vec![(lo, hi); count];
+    let mut stack = vec![(lo, hi, numerov.count_below(lo), numerov.count_below(hi))];
+    while let Some((a, b, ca, cb)) = stack.pop() {
+        if cb <= ca || ca >= count {
+            continue;
+        }
+        if cb == ca + 1 || b - a < 1e-15 * (1.0 + b.abs()) {
+            for bracket in brackets.iter_mut().take(cb.min(count)).skip(ca) {
+                *bracket = (a, b);
+            }
+            continue;
+        }
+        let mid = 0.5 * (a + b);
+        let cm = numerov.count_below(mid);
+        stack.push((a, mid, ca, cm));
+        stack.push((mid, b, cm, cb));
+    }
+    brackets
+}
+
+/// Per-level result before assembly.
+struct Solved {
+    level: Level,
+    wavefunction: Option<Wavefunction>,
+    grid: UniformGrid,
+}
+
+fn solve_numerov(problem: &RadialProblem, settings: &SolverSettings, facts: &WellFacts) -> Result<LevelSet, SolverError> {
+    let counting = counting_box(problem, settings, facts)?;
+    let floor = facts.curve_minimum;
+    let coarse = check_grid(problem, facts, &counting.coarse)?;
+    let mut count = counting.audit.bound_levels;
+    if let Some(v) = settings.highest_v {
+        count = count.min(v as usize + 1);
+    }
+    if count == 0 {
+        return Err(SolverError::NothingBound { j: problem.j });
+    }
+    let brackets = isolate_levels(&coarse, facts.floor - floor, facts.top - floor, count);
+    let fixed_range = settings.r_range.is_some();
+    let solved: Vec<Result<Solved, SolverError>> = (0..count)
+        .into_par_iter()
+        .map(|v| {
+            solve_one(problem, settings, facts, &counting, v, brackets[v], fixed_range)
+        })
+        .collect();
+    let mut levels = Vec::with_capacity(count);
+    let mut wavefunctions = Vec::new();
+    let mut finest_grid = counting.coarse;
+    for result in solved {
+        let s = result?;
+        finest_grid = s.grid;
+        levels.push(s.level);
+        wavefunctions.extend(s.wavefunction);
+    }
+    Ok(LevelSet {
+        j: problem.j,
+        reduced_mass: problem.reduced_mass,
+        method: Method::Numerov,
+        curve_minimum: facts.curve_minimum,
+        limit: problem.curve.limit(),
+        levels,
+        audit: counting.audit,
+        wavefunctions,
+        finest_grid,
+    })
+}
+
+/// Expectation values (h sum) of r and r^-2 for a normalised psi on a grid.
+fn expectations(grid: &UniformGrid, psi: &[f64]) -> (f64, f64) {
+    let mut mean_r = 0.0;
+    let mut mean_inv = 0.0;
+    for (i, p) in psi.iter().enumerate() {
+        let r = grid.r(i);
+        let weight = p * p * grid.step;
+        mean_r += weight * r;
+        mean_inv += weight / (r * r);
+    }
+    (mean_r, mean_inv)
+}
+
+fn solve_one(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+    facts: &WellFacts,
+    counting: &Counting,
+    v: usize,
+    bracket: (f64, f64),
+    fixed_range: bool,
+) -> Result<Solved, SolverError> {
+    let floor = facts.curve_minimum;
+    let cap = counting.coarse.end();
+    // The box this level needs: decay past its outer turning point at the top of its bracket.
+    let guess = floor + bracket.1.min(facts.top - floor);
+    let mut base = counting.coarse;
+    if !fixed_range {
+        let (_, outer) = turning(problem, facts, guess, cap);
+        let end = grid::outer_bound(problem, guess, outer, cap);
+        base = grid_over(counting.coarse.start, end, counting.coarse.step);
+    }
+    let mut best: Option<Solved> = None;
+    for refinement in 0..=MAX_REFINEMENTS {
+        let grids = [1usize, 2, 4].map(|f| base.refined(f << refinement));
+        let mut energies = [0.0; 3];
+        let mut mean_r = [0.0; 3];
+        let mut mean_inv = [0.0; 3];
+        let mut last = None;
+        let (mut lo, mut hi) = bracket;
+        for (k, g) in grids.iter().enumerate() {
+            let numerov = check_grid(problem, facts, g)?;
+            let start = (k > 0).then(|| energies[k - 1]);
+            let level = numerov
+                .solve_level(v, lo, hi, start, 1e-3 * settings.tolerance)
+                .ok_or_else(|| SolverError::Bracket {
+                    v: v as u32,
+                    grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
+                })?;
+            (mean_r[k], mean_inv[k]) = expectations(g, &level.psi);
+            // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
+            let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
+            (lo, hi) = (level.energy - shift, level.energy + shift);
+            last = Some((level, *g));
+        }
+        let (energy, error_estimate) = richardson(energies);
+        let (r_avg, _) = richardson(mean_r);
+        let (inv_r2, _) = richardson(mean_inv);
+        let (level, finest) = last.expect("three grids solved");
+        let absolute = energy + floor;
+        let (inner, outer) = turning(problem, facts, absolute, 10.0 * cap);
+        let converged = error_estimate <= settings.tolerance;
+        let solved = Solved {
+            level: Level {
+                v: v as u32,
+                j: problem.j,
+                energy: absolute,
+                error_estimate,
+                converged,
+                inner_turning_point: inner,
+                outer_turning_point: outer,
+                mean_r: r_avg,
+                mean_inverse_r2: inv_r2,
+                rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
+            },
+            wavefunction: settings.keep_wavefunctions.then(|| Wavefunction {
+                v: v as u32,
+                r: (0..=finest.intervals).map(|i| finest.r(i)).collect(),
+                psi: level.psi,
+            }),
+            grid: finest,
+        };
+        // The box must also hold the converged level's tail.
+        if !fixed_range && base.end() < cap {
+            let needed = grid::outer_bound(problem, absolute, outer, cap);
+            if needed > base.end() * 1.0001 {
+                base = grid_over(base.start, needed, base.step);
+                best = Some(solved);
+                continue;
+            }
+        }
+        let done = converged || fixed_range && settings.step.is_some();
+        best = Some(solved);
+        if done {
+            break;
+        }
+    }
+    Ok(best.expect("at least one refinement ran"))
+}
