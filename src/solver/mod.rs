@@ -513,6 +513,7 @@ fn solve_one(
                     v: v as u32,
                     grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
                 })?;
+            energies[k] = level.energy;
             (mean_r[k], mean_inv[k]) = expectations(g, &level.psi);
             // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
             let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
