@@ -13,3 +13,5 @@ pub mod masses;
 pub mod reader;
 pub mod solver;
 pub mod units;
+pub mod report;
+pub mod survey;

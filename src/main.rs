@@ -1,1 +1,313 @@
-fn main() {}
+//! The `rungs` command line: parses arguments, calls the library, prints. No physics here.
+//!
+//! Exit codes: 0 success; 1 a numerical failure; 2 bad input or usage; 3 results were printed
+//! but at least one level missed the tolerance (marked in the output).
+
+use anyhow::{bail, Context, Result};
+use clap::{Args, Parser, Subcommand};
+use rungs::reader::{self, CurveSetup, PairOverride};
+use rungs::report::tables::{levels_table, survey_table, wavefunction_table, DisplayUnits};
+use rungs::report::{Format, Table};
+use rungs::solver::{self, LevelSet, Method, RadialProblem, SolverError, SolverSettings};
+use rungs::units::{self, Dimension};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+#[derive(Parser)]
+#[command(
+    name = "rungs",
+    version,
+    about = "Bound levels and spectroscopic quantities of diatomic potential-energy curves",
+    long_about = "Bound levels and spectroscopic quantities of diatomic potential-energy curves.\n\n\
+Give a curve file (TOML; see curves/ for invented examples) or an inline model with --model and --atoms.\n\
+Every quantity carries its unit: \"2990.9 cm-1\", \"1.2746 angstrom\", \"34.96885 u\"."
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// The well, harmonic constants, a WKB level count and turning points of a curve.
+    #[command(after_help = "Examples:\n  rungs inspect curves/hcl_morse.toml\n  rungs inspect --model 'morse:omega_e=2990.946 cm-1,omega_e_x_e=52.8186 cm-1,r_e=1.27455 angstrom' --atoms 1H 35Cl --at '5000 cm-1'\n  rungs inspect curves/h2_points.toml --format json")]
+    Inspect(InspectArgs),
+    /// Every bound vibrational level (any J) with its diagnostics, and wavefunctions on request.
+    #[command(after_help = "Examples:\n  rungs levels curves/hcl_morse.toml\n  rungs levels curves/h2_points.toml --j 0-5 --format csv\n  rungs levels curves/hcl_morse.toml --all-j --energy-unit eV\n  rungs levels curves/hcl_morse.toml --wavefunctions psi.csv --v 0,1,2")]
+    Levels(LevelsArgs),
+}
+
+#[derive(Args)]
+struct CurveArgs {
+    /// Curve file (TOML).
+    curve: Option<PathBuf>,
+    /// Inline analytic model instead of a file: MODEL:key=value,... e.g.
+    /// 'morse:well_depth=37000 cm-1,width=1.9 1/angstrom,r_e=1.27 angstrom'.
+    #[arg(long, conflicts_with = "curve")]
+    model: Option<String>,
+    /// The two atoms (nuclide labels such as 1H, D, 35Cl, or masses such as '34.97 u');
+    /// replaces the file's.
+    #[arg(long, num_args = 2, value_names = ["FIRST", "SECOND"])]
+    atoms: Option<Vec<String>>,
+    /// Molecular charge (+1 for a cation); replaces the file's.
+    #[arg(long, allow_hyphen_values = true)]
+    charge: Option<i32>,
+}
+
+#[derive(Args)]
+struct OutputArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    format: Format,
+    /// Energy unit of the output (cm-1, eV, hartree, kJ/mol, kcal/mol, K, MHz, GHz).
+    #[arg(long, default_value = "cm-1")]
+    energy_unit: String,
+    /// Length unit of the output (angstrom, bohr, nm, pm).
+    #[arg(long, default_value = "angstrom")]
+    length_unit: String,
+    /// Write to this file instead of standard output ('-' for standard output).
+    #[arg(long, short)]
+    output: Option<PathBuf>,
+}
+
+#[derive(Args)]
+struct InspectArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// Also give the classical turning points at this energy above the minimum, e.g. '5000 cm-1'.
+    #[arg(long)]
+    at: Option<String>,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+#[derive(Args)]
+struct LevelsArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// Rotational quantum number J, or a range such as 0-10.
+    #[arg(long, default_value = "0", conflicts_with = "all_j")]
+    j: String,
+    /// Every J until no level is bound (the whole bound manifold).
+    #[arg(long)]
+    all_j: bool,
+    /// Omega, the projection of electronic angular momentum (0 for Sigma states).
+    #[arg(long, default_value_t = 0)]
+    omega: u32,
+    /// Highest v to report.
+    #[arg(long)]
+    vmax: Option<u32>,
+    /// Tolerance each level must meet, e.g. '1e-6 cm-1' (default 1e-6 cm-1).
+    #[arg(long)]
+    tolerance: Option<String>,
+    /// Method: numerov (production) or dvr (dense sinc-DVR reference).
+    #[arg(long, default_value = "numerov", value_parser = ["numerov", "dvr"])]
+    method: String,
+    /// Fix the grid's inner end, e.g. '0.5 angstrom' (with --r-max).
+    #[arg(long, requires = "r_max")]
+    r_min: Option<String>,
+    /// Fix the grid's outer end, e.g. '12 angstrom' (with --r-min).
+    #[arg(long, requires = "r_min")]
+    r_max: Option<String>,
+    /// Fix the grid step (the coarsest of the Richardson sequence), e.g. '0.01 angstrom'.
+    #[arg(long)]
+    step: Option<String>,
+    /// For curves without a dissociation limit: highest energy above the minimum sought.
+    #[arg(long)]
+    ceiling: Option<String>,
+    /// Write the wavefunctions (CSV: v, r, psi) of the first J to this file.
+    #[arg(long)]
+    wavefunctions: Option<PathBuf>,
+    /// Which v to write with --wavefunctions, e.g. 0,1,5 (default: all).
+    #[arg(long, value_delimiter = ',')]
+    v: Option<Vec<u32>>,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+/// An error whose exit code is 2 (bad input).
+#[derive(Debug, thiserror::Error)]
+#[error("{0}")]
+struct BadInput(String);
+
+fn bad_input(message: impl Into<String>) -> anyhow::Error {
+    BadInput(message.into()).into()
+}
+
+fn load_curve(args: &CurveArgs) -> Result<CurveSetup> {
+    let overrides = PairOverride {
+        atoms: args.atoms.clone(),
+        charge: args.charge,
+    };
+    let setup = match (&args.curve, &args.model) {
+        (Some(path), None) => reader::read_curve_file(path, &overrides),
+        (None, Some(spec)) => {
+            let atoms = args
+                .atoms
+                .as_ref()
+                .ok_or_else(|| bad_input("--model needs --atoms, e.g. --atoms 1H 35Cl"))?;
+            reader::parse_inline_model(spec, atoms, args.charge.unwrap_or(0))
+        }
+        _ => return Err(bad_input("give a curve file, or --model with --atoms; see 'rungs help inspect'")),
+    };
+    let setup = setup.map_err(|e| bad_input(e.to_string()))?;
+    for warning in &setup.warnings {
+        eprintln!("warning: {warning}");
+    }
+    Ok(setup)
+}
+
+fn quantity(text: &str, dimension: Dimension, option: &str) -> Result<f64> {
+    units::parse_quantity(text, dimension).map_err(|e| bad_input(format!("{option}: {e}")))
+}
+
+fn display_units(args: &OutputArgs) -> Result<DisplayUnits> {
+    Ok(DisplayUnits {
+        energy: units::parse_unit(&args.energy_unit, Dimension::Energy).map_err(|e| bad_input(format!("--energy-unit: {e}")))?,
+        length: units::parse_unit(&args.length_unit, Dimension::Length).map_err(|e| bad_input(format!("--length-unit: {e}")))?,
+    })
+}
+
+fn write_output(text: &str, path: Option<&Path>) -> Result<()> {
+    match path {
+        Some(p) if p != Path::new("-") => std::fs::write(p, text).with_context(|| format!("cannot write '{}'", p.display())),
+        _ => {
+            let mut out = std::io::stdout().lock();
+            out.write_all(text.as_bytes()).context("cannot write to standard output")
+        }
+    }
+}
+
+fn print_table(table: &Table, args: &OutputArgs) -> Result<()> {
+    write_output(&table.render(args.format), args.output.as_deref())
+}
+
+fn inspect(args: InspectArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let at = args.at.as_deref().map(|t| quantity(t, Dimension::Energy, "--at")).transpose()?;
+    let survey = rungs::survey::survey(setup.curve.as_ref(), &setup.pair, at).map_err(|e| bad_input(e.to_string()))?;
+    print_table(&survey_table(&survey, &setup, units), &args.output)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn j_values(text: &str) -> Result<(u32, u32)> {
+    let parse = |t: &str| t.trim().parse::<u32>().map_err(|_| bad_input(format!("--j: '{text}' is not a J or a range such as 0-10")));
+    match text.split_once('-') {
+        Some((a, b)) => {
+            let (a, b) = (parse(a)?, parse(b)?);
+            if a > b {
+                bail!(bad_input(format!("--j: the range {text} runs backwards")));
+            }
+            Ok((a, b))
+        }
+        None => parse(text).map(|j| (j, j)),
+    }
+}
+
+fn solver_settings(args: &LevelsArgs, setup: &CurveSetup) -> Result<SolverSettings> {
+    let length = |t: &Option<String>, o: &str| t.as_deref().map(|t| quantity(t, Dimension::Length, o)).transpose();
+    let r_range = match (length(&args.r_min, "--r-min")?, length(&args.r_max, "--r-max")?) {
+        (Some(a), Some(b)) if a < b => Some((a, b)),
+        (Some(_), Some(_)) => return Err(bad_input("--r-min must be below --r-max")),
+        _ => setup.solver.r_range,
+    };
+    let step = length(&args.step, "--step")?.or(setup.solver.step);
+    let tolerance = args
+        .tolerance
+        .as_deref()
+        .map(|t| quantity(t, Dimension::Energy, "--tolerance"))
+        .transpose()?
+        .or(setup.solver.tolerance);
+    let ceiling = args.ceiling.as_deref().map(|t| quantity(t, Dimension::Energy, "--ceiling")).transpose()?;
+    let method = if args.method == "dvr" { Method::SincDvr } else { Method::Numerov };
+    let mut settings = SolverSettings::default()
+        .with_method(method)
+        .with_highest_v(args.vmax)
+        .with_grid(r_range, step)
+        .with_ceiling(ceiling)
+        .with_wavefunctions(args.wavefunctions.is_some());
+    if let Some(t) = tolerance {
+        settings = settings.with_tolerance(t);
+    }
+    Ok(settings)
+}
+
+fn solver_failure(error: SolverError) -> anyhow::Error {
+    match error {
+        SolverError::Shape(_)
+        | SolverError::NothingBound { .. }
+        | SolverError::StepTooCoarse { .. }
+        | SolverError::UnderResolved { .. }
+        | SolverError::RangeMissesWell { .. }
+        | SolverError::DvrTooLarge { .. }
+        | SolverError::NotFinite { .. } => bad_input(error.to_string()),
+        other => anyhow::Error::new(other),
+    }
+}
+
+fn levels(args: LevelsArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let settings = solver_settings(&args, &setup)?;
+    let mu = setup.pair.reduced_mass();
+    let solve_j = |j: u32| {
+        let mut problem = RadialProblem::new(setup.curve.as_ref(), mu, j);
+        problem.omega = args.omega;
+        solver::solve(&problem, &settings)
+    };
+    let mut sets: Vec<LevelSet> = Vec::new();
+    if args.all_j {
+        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings).map_err(solver_failure)?;
+    } else {
+        let (first, last) = j_values(&args.j)?;
+        for j in first..=last {
+            match solve_j(j) {
+                Ok(set) => sets.push(set),
+                Err(SolverError::NothingBound { .. }) if j > first => break,
+                Err(e) => return Err(solver_failure(e)),
+            }
+        }
+    }
+    if let (Some(path), Some(first)) = (&args.wavefunctions, sets.first_mut()) {
+        if let Some(wanted) = &args.v {
+            let available = first.levels.len() as u32;
+            if let Some(missing) = wanted.iter().find(|&&v| v >= available) {
+                return Err(bad_input(format!(
+                    "--v {missing}: J = {} has bound levels v = 0..{} only",
+                    first.j,
+                    available.saturating_sub(1)
+                )));
+            }
+            first.wavefunctions.retain(|w| wanted.contains(&w.v));
+        }
+        let table = wavefunction_table(first, units);
+        write_output(&table.render(Format::Csv), Some(path))?;
+    }
+    print_table(&levels_table(&sets, &setup.pair, units), &args.output)?;
+    let unconverged = sets.iter().any(|s| s.unconverged().next().is_some());
+    Ok(if unconverged { ExitCode::from(3) } else { ExitCode::SUCCESS })
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Inspect(args) => inspect(args),
+        Command::Levels(args) => levels(args),
+    };
+    match result {
+        Ok(code) => code,
+        Err(error) => {
+            eprintln!("error: {error}");
+            for cause in error.chain().skip(1) {
+                eprintln!("  caused by: {cause}");
+            }
+            if error.downcast_ref::<BadInput>().is_some() {
+                ExitCode::from(2)
+            } else {
+                ExitCode::from(1)
+            }
+        }
+    }
+}

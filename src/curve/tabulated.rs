@@ -16,8 +16,9 @@ pub enum InnerWall {
 /// Outward extrapolation toward the limit L.
 #[derive(Debug, Clone, PartialEq)]
 pub enum OuterTail {
-    /// V(r) = L - sum_k C_k / r^(n_k). Coefficients given (hartree bohr^n) or, when None,
-    /// fitted through the outermost points (one point per coefficient, one more when L is fitted).
+    /// V(r) = L - sum_k C_k / r^(n_k). Coefficients given (hartree bohr^n) for the leading
+    /// powers are kept; the rest are fitted through the outermost points (one point per fitted
+    /// coefficient, one more when L is fitted).
     InversePower {
         powers: Vec<f64>,
         coefficients: Option<Vec<f64>>,
@@ -210,51 +211,45 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
         why: why.to_string(),
     };
     match tail {
-        OuterTail::InversePower {
-            powers,
-            coefficients: Some(c),
-        } => {
-            if c.len() != powers.len() {
+        OuterTail::InversePower { powers, coefficients } => {
+            let known = coefficients.clone().unwrap_or_default();
+            if known.len() > powers.len() {
                 return Err(TabulatedError::TailShape {
                     powers: powers.len(),
-                    coefficients: c.len(),
+                    coefficients: known.len(),
                 });
             }
-            // L given, or fitted so that the tail passes through the last point.
-            let tail_sum: f64 = powers.iter().zip(c).map(|(&p, &k)| k * r[n - 1].powf(-p)).sum();
-            Ok(Tail::Powers {
-                limit: limit.unwrap_or(v[n - 1] + tail_sum),
-                powers: powers.clone(),
-                coefficients: c.clone(),
-            })
-        }
-        OuterTail::InversePower {
-            powers,
-            coefficients: None,
-        } => {
-            let unknowns = powers.len() + usize::from(limit.is_none());
+            // Coefficients given for the leading powers are kept; the remaining ones (and L
+            // when not given) are fitted so that the tail passes through the outermost points.
+            let free_powers = &powers[known.len()..];
+            let unknowns = free_powers.len() + usize::from(limit.is_none());
             if unknowns > n {
                 return Err(TabulatedError::TailNeedsPoints {
                     needed: unknowns,
                     found: n,
                 });
             }
-            // Rows: V_i = L - sum C_k r_i^-n_k for the last `unknowns` points.
-            let rows = (n - unknowns..n).collect::<Vec<_>>();
-            let matrix = rows
-                .iter()
-                .map(|&i| {
-                    let mut row: Vec<f64> = powers.iter().map(|&p| -r[i].powf(-p)).collect();
-                    if limit.is_none() {
-                        row.push(1.0);
-                    }
-                    row
-                })
-                .collect();
-            let rhs = rows.iter().map(|&i| v[i] - limit.unwrap_or(0.0)).collect();
-            let solution = solve_small(matrix, rhs).ok_or_else(|| fail("the fit is singular"))?;
-            let coefficients = solution[..powers.len()].to_vec();
-            let fitted_limit = limit.unwrap_or_else(|| solution[powers.len()]);
+            let known_part = |x: f64| -> f64 { powers.iter().zip(&known).map(|(&p, &c)| c * x.powf(-p)).sum() };
+            let mut solution = Vec::new();
+            if unknowns > 0 {
+                // Rows: V_i + known(r_i) - L_given = -sum_free C_k r_i^-n_k (+ L when fitted).
+                let rows = (n - unknowns..n).collect::<Vec<_>>();
+                let matrix = rows
+                    .iter()
+                    .map(|&i| {
+                        let mut row: Vec<f64> = free_powers.iter().map(|&p| -r[i].powf(-p)).collect();
+                        if limit.is_none() {
+                            row.push(1.0);
+                        }
+                        row
+                    })
+                    .collect();
+                let rhs = rows.iter().map(|&i| v[i] + known_part(r[i]) - limit.unwrap_or(0.0)).collect();
+                solution = solve_small(matrix, rhs).ok_or_else(|| fail("the fit is singular"))?;
+            }
+            let mut coefficients = known;
+            coefficients.extend_from_slice(&solution[..free_powers.len().min(solution.len())]);
+            let fitted_limit = limit.unwrap_or_else(|| solution[free_powers.len()]);
             Ok(Tail::Powers {
                 limit: fitted_limit,
                 powers: powers.clone(),

@@ -564,3 +564,34 @@ fn solve_one(
     }
     Ok(best.expect("at least one refinement ran"))
 }
+
+/// Every bound (v, J): J = 0, 1, 2, ... until no level is bound, solved in parallel in
+/// batches of J. Returns one [`LevelSet`] per J, in order.
+pub fn solve_manifold(
+    curve: &dyn PotentialCurve,
+    reduced_mass: f64,
+    omega: u32,
+    settings: &SolverSettings,
+) -> Result<Vec<LevelSet>, SolverError> {
+    let batch = 2 * rayon::current_num_threads().max(1) as u32;
+    let mut sets = Vec::new();
+    let mut first = omega;
+    loop {
+        let results: Vec<Result<LevelSet, SolverError>> = (first..first + batch)
+            .into_par_iter()
+            .map(|j| {
+                let mut problem = RadialProblem::new(curve, reduced_mass, j);
+                problem.omega = omega;
+                solve(&problem, settings)
+            })
+            .collect();
+        for result in results {
+            match result {
+                Ok(set) => sets.push(set),
+                Err(SolverError::NothingBound { .. }) if !sets.is_empty() => return Ok(sets),
+                Err(e) => return Err(e),
+            }
+        }
+        first += batch;
+    }
+}

@@ -1,0 +1,208 @@
+//! Tables built from the results of the earlier stages, in the user's units.
+
+use super::{Cell, Column, Table};
+use crate::masses::Pair;
+use crate::reader::CurveSetup;
+use crate::solver::{LevelSet, Method};
+use crate::survey::Survey;
+use crate::units::{to_dalton, Unit};
+
+/// The units a user asked to see.
+#[derive(Debug, Clone, Copy)]
+pub struct DisplayUnits {
+    pub energy: &'static Unit,
+    pub length: &'static Unit,
+}
+
+impl DisplayUnits {
+    fn e(&self, hartree: f64) -> Cell {
+        Cell::Number(self.energy.from_atomic(hartree))
+    }
+    fn l(&self, bohr: f64) -> Cell {
+        Cell::Number(self.length.from_atomic(bohr))
+    }
+    fn opt_l(&self, bohr: Option<f64>) -> Cell {
+        bohr.map_or(Cell::Missing, |b| self.l(b))
+    }
+}
+
+/// Born-Oppenheimer and infrared notes that every curve report carries.
+fn physics_notes(pair: &Pair) -> Vec<String> {
+    let mut notes = vec![
+        "the curve is taken as a Born-Oppenheimer (mass-independent) potential; adiabatic and nonadiabatic corrections are not included".to_string(),
+    ];
+    if pair.is_homonuclear() {
+        notes.push(format!(
+            "{} is homonuclear: it has no permanent dipole moment, so its vibration-rotation transitions within this electronic state are electric-dipole forbidden (infrared-inactive)",
+            pair.label()
+        ));
+    }
+    notes
+}
+
+/// The survey as a table of (quantity, value, unit) rows.
+pub fn survey_table(survey: &Survey, setup: &CurveSetup, units: DisplayUnits) -> Table {
+    let (eu, lu) = (units.energy.name, units.length.name);
+    let mut rows: Vec<(String, Cell, String)> = vec![
+        ("reduced_mass".into(), Cell::Number(to_dalton(survey.reduced_mass)), "u".into()),
+        ("r_e".into(), units.l(survey.well.r_min), lu.into()),
+        ("V_at_r_e".into(), units.e(survey.well.v_min), eu.into()),
+        ("asymptote".into(), survey.limit.map_or(Cell::Missing, |l| units.e(l)), eu.into()),
+        ("D_e".into(), survey.well_depth.map_or(Cell::Missing, |d| units.e(d)), eu.into()),
+        (
+            "force_constant".into(),
+            Cell::Number(crate::units::parse_unit("N/m", crate::units::Dimension::ForceConstant).expect("N/m is a unit").from_atomic(survey.well.force_constant)),
+            "N/m".into(),
+        ),
+        ("omega_e".into(), units.e(survey.omega_e), eu.into()),
+        ("B_e".into(), units.e(survey.rotational_constant), eu.into()),
+        ("harmonic_zero_point".into(), units.e(survey.harmonic_zero_point), eu.into()),
+        ("wkb_v_at_limit".into(), survey.wkb_index_at_limit.map_or(Cell::Missing, Cell::Number), "".into()),
+        (
+            "wkb_bound_levels".into(),
+            survey.wkb_level_count.map_or(Cell::Missing, |n| Cell::Integer(n.into())),
+            "".into(),
+        ),
+    ];
+    if let Some((energy, inner, outer)) = survey.turning_points {
+        rows.push(("turning_energy_above_minimum".into(), units.e(energy), eu.into()));
+        rows.push(("turning_point_inner".into(), units.opt_l(inner), lu.into()));
+        rows.push(("turning_point_outer".into(), units.opt_l(outer), lu.into()));
+    }
+    if let Some(join) = setup.join {
+        rows.push(("join_inner_r".into(), units.l(join.inner_r), lu.into()));
+        rows.push(("join_inner_value_mismatch".into(), units.e(join.inner_value_mismatch), eu.into()));
+        rows.push(("join_inner_slope_mismatch".into(), units.e(units.length.to_atomic(join.inner_slope_mismatch)), format!("{eu}/{lu}")));
+        rows.push(("join_outer_r".into(), units.l(join.outer_r), lu.into()));
+        rows.push(("join_outer_value_mismatch".into(), units.e(join.outer_value_mismatch), eu.into()));
+        rows.push(("join_outer_slope_mismatch".into(), units.e(units.length.to_atomic(join.outer_slope_mismatch)), format!("{eu}/{lu}")));
+    }
+    for (n, c) in &setup.tail_coefficients {
+        rows.push((format!("tail_C{n}"), Cell::Number(*c), format!("hartree bohr^{n}")));
+    }
+    let mut notes = physics_notes(&setup.pair);
+    notes.extend(setup.warnings.iter().cloned());
+    Table {
+        title: format!("{} | {}", setup.pair.label(), setup.curve.describe()),
+        columns: vec![Column::new("quantity", 0), Column::new("value", 6), Column::new("unit", 0)],
+        rows: rows.into_iter().map(|(q, v, u)| vec![Cell::Text(q), v, Cell::Text(u)]).collect(),
+        notes,
+    }
+}
+
+/// One row per level, with energies on four scales and the per-level diagnostics.
+pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Table {
+    let (eu, lu) = (units.energy.name, units.length.name);
+    let columns = vec![
+        Column::new("v", 0),
+        Column::new("J", 0),
+        Column::new(format!("energy_{eu}"), 6),
+        Column::new(format!("above_minimum_{eu}"), 6),
+        Column::new(format!("term_value_{eu}"), 6),
+        Column::new(format!("binding_{eu}"), 6),
+        Column::new(format!("spacing_{eu}"), 6),
+        Column::new(format!("r_inner_{lu}"), 5),
+        Column::new(format!("r_outer_{lu}"), 5),
+        Column::new(format!("mean_r_{lu}"), 5),
+        Column::new(format!("mean_r-2_{lu}-2"), 6),
+        Column::new(format!("B_v_{eu}"), 6),
+        Column::new(format!("error_{eu}"), 1),
+        Column::new("converged", 0),
+    ];
+    let mut rows = Vec::new();
+    let mut notes = physics_notes(pair);
+    for set in sets {
+        let ground = set.levels.first().map_or(0.0, |l| l.energy);
+        for (k, level) in set.levels.iter().enumerate() {
+            let spacing = set.levels.get(k + 1).map(|next| next.energy - level.energy);
+            rows.push(vec![
+                Cell::Integer(level.v.into()),
+                Cell::Integer(level.j.into()),
+                units.e(level.energy),
+                units.e(level.energy - set.curve_minimum),
+                units.e(level.energy - ground),
+                set.limit.map_or(Cell::Missing, |l| units.e(l - level.energy)),
+                spacing.map_or(Cell::Missing, |s| units.e(s)),
+                units.l(level.inner_turning_point),
+                units.l(level.outer_turning_point),
+                units.l(level.mean_r),
+                Cell::Number(level.mean_inverse_r2 / units.length.from_atomic(1.0).powi(2)),
+                units.e(level.rotational_constant),
+                units.e(level.error_estimate),
+                Cell::Flag(level.converged),
+            ]);
+        }
+        let audit = &set.audit;
+        let method = match set.method {
+            Method::Numerov => "Numerov (Sturm count, Cooley, Richardson)",
+            Method::SincDvr => "sinc-DVR reference",
+        };
+        let mut count_note = format!(
+            "J = {}: {} bound levels below the {} (method: {method}; counting box to {:.2} {lu}",
+            set.j,
+            audit.bound_levels,
+            if set.limit.is_some() { "dissociation limit" } else { "energy ceiling" },
+            units.length.from_atomic(audit.box_outer),
+        );
+        if audit.stable_on_doubling {
+            count_note += &format!(
+                ", count unchanged on doubling the box; a further level would be bound by less than {:.3e} {eu})",
+                units.energy.from_atomic(audit.undetectable_binding)
+            );
+        } else {
+            count_note += ")";
+        }
+        notes.push(count_note);
+        if let (Some(last), Some(limit)) = (set.levels.last(), set.limit) {
+            if set.levels.len() == audit.bound_levels {
+                notes.push(format!(
+                    "J = {}: least-bound level v = {} lies {:.6e} {eu} below the limit",
+                    set.j,
+                    last.v,
+                    units.energy.from_atomic(limit - last.energy)
+                ));
+            }
+        }
+        let unconverged: Vec<String> = set.unconverged().map(|l| l.v.to_string()).collect();
+        if !unconverged.is_empty() {
+            notes.push(format!(
+                "J = {}: NOT CONVERGED to the tolerance: v = {} (see error column; a finer --step or a larger --tolerance)",
+                set.j,
+                unconverged.join(", ")
+            ));
+        }
+    }
+    Table {
+        title: format!("bound levels of {}", pair.label()),
+        columns,
+        rows,
+        notes,
+    }
+}
+
+/// Wavefunctions in long form: one row per grid point per level (each level keeps its own
+/// grid), columns v, r and psi.
+pub fn wavefunction_table(set: &LevelSet, units: DisplayUnits) -> Table {
+    let lu = units.length.name;
+    // psi in length^-1/2: psi_user = psi_bohr * sqrt(bohr per user unit).
+    let scale = units.length.to_atomic(1.0).sqrt();
+    let rows = set
+        .wavefunctions
+        .iter()
+        .flat_map(|w| {
+            w.r.iter()
+                .zip(&w.psi)
+                .map(move |(&r, &psi)| vec![Cell::Integer(w.v.into()), units.l(r), Cell::Number(psi * scale)])
+        })
+        .collect();
+    Table {
+        title: format!("wavefunctions, J = {}", set.j),
+        columns: vec![
+            Column::new("v", 0),
+            Column::new(format!("r_{lu}"), 6),
+            Column::new(format!("psi_{lu}^-1/2"), 8),
+        ],
+        rows,
+        notes: vec!["normalised to int psi^2 dr = 1; sign: positive on the innermost lobe".into()],
+    }
+}
