@@ -187,7 +187,8 @@ fn inspect(args: InspectArgs) -> Result<ExitCode> {
     let setup = load_curve(&args.curve)?;
     let units = display_units(&args.output)?;
     let at = args.at.as_deref().map(|t| quantity(t, Dimension::Energy, "--at")).transpose()?;
-    let survey = rungs::survey::survey(setup.curve.as_ref(), &setup.pair, at).map_err(|e| bad_input(e.to_string()))?;
+    let survey = rungs::survey::survey(setup.curve.as_ref(), &setup.pair, at)
+        .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
     print_table(&survey_table(&survey, &setup, units), &args.output)?;
     Ok(ExitCode::SUCCESS)
 }
@@ -234,17 +235,18 @@ fn solver_settings(args: &LevelsArgs, setup: &CurveSetup) -> Result<SolverSettin
     Ok(settings)
 }
 
-fn solver_failure(error: SolverError) -> anyhow::Error {
-    match error {
+fn solver_failure(source: &str, error: SolverError) -> anyhow::Error {
+    let error = match error {
         SolverError::Shape(_)
         | SolverError::NothingBound { .. }
         | SolverError::StepTooCoarse { .. }
         | SolverError::UnderResolved { .. }
         | SolverError::RangeMissesWell { .. }
         | SolverError::DvrTooLarge { .. }
-        | SolverError::NotFinite { .. } => bad_input(error.to_string()),
-        other => anyhow::Error::new(other),
-    }
+        | SolverError::NotFinite { .. } => return bad_input(format!("{source}: {error}")),
+        other => other,
+    };
+    anyhow::Error::new(error).context(format!("solving the levels of {source}"))
 }
 
 fn levels(args: LevelsArgs) -> Result<ExitCode> {
@@ -259,14 +261,14 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
     };
     let mut sets: Vec<LevelSet> = Vec::new();
     if args.all_j {
-        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings).map_err(solver_failure)?;
+        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings).map_err(|e| solver_failure(&setup.source, e))?;
     } else {
         let (first, last) = j_values(&args.j)?;
         for j in first..=last {
             match solve_j(j) {
                 Ok(set) => sets.push(set),
                 Err(SolverError::NothingBound { .. }) if j > first => break,
-                Err(e) => return Err(solver_failure(e)),
+                Err(e) => return Err(solver_failure(&setup.source, e)),
             }
         }
     }

@@ -309,7 +309,7 @@ fn split_number(text: &str) -> Option<(f64, &str)> {
 /// ```
 /// use rungs::units::{parse_quantity, Dimension};
 /// let r_e = parse_quantity("1.27455 angstrom", Dimension::Length).unwrap();
-/// assert!((r_e - 2.408541).abs() < 1e-6); // bohr
+/// assert!((r_e - 2.408545).abs() < 1e-6); // bohr (1.27455 / 0.529177210903)
 /// ```
 pub fn parse_quantity(text: &str, dimension: Dimension) -> Result<f64, UnitError> {
     let example = example_for(dimension).to_string();

@@ -96,6 +96,8 @@ pub struct SolverHints {
 /// Everything needed downstream: the pair of atoms, the curve, and what was noticed on reading.
 #[derive(Debug, Clone)]
 pub struct CurveSetup {
+    /// The file path, or "--model" for an inline model: named in later error messages.
+    pub source: String,
     pub title: Option<String>,
     pub pair: Pair,
     pub curve: Arc<dyn PotentialCurve>,
@@ -511,6 +513,7 @@ pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &Pai
         _ => None,
     };
     Ok(CurveSetup {
+        source: name.to_string(),
         title,
         pair,
         curve: built.curve,
@@ -570,6 +573,7 @@ pub fn parse_inline_model(spec: &str, atoms: &[String], charge: i32) -> Result<C
     let pair = parse_pair(atoms, charge, &Origin { name: "--atoms".into(), ..top_clone(&origin) }, None)?;
     let built = build_curve(&table, &origin, pair.reduced_mass())?;
     Ok(CurveSetup {
+        source: "--model".to_string(),
         title: None,
         pair,
         curve: built.curve,

@@ -163,6 +163,12 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
                 ));
             }
         }
+        if audit.rejected_above_limit > 0 {
+            notes.push(format!(
+                "J = {}: {} level(s) the coarse counting grid placed just below the limit converged above it and are not bound",
+                set.j, audit.rejected_above_limit
+            ));
+        }
         let unconverged: Vec<String> = set.unconverged().map(|l| l.v.to_string()).collect();
         if !unconverged.is_empty() {
             notes.push(format!(

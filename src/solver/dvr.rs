@@ -19,7 +19,7 @@ use faer::{Mat, Side};
 /// Largest matrix the reference path will build.
 pub const MAX_DVR_POINTS: usize = 6000;
 /// Points per local wavelength at the bottom of the well (sinc-DVR needs more than 2).
-const DVR_POINTS_PER_WAVELENGTH: f64 = 5.0;
+const DVR_POINTS_PER_WAVELENGTH: f64 = 4.0;
 
 struct DvrSolution {
     energies: Vec<f64>,
@@ -142,6 +142,7 @@ pub(super) fn solve_dvr(
             box_outer: hi,
             stable_on_doubling: false,
             undetectable_binding: f64::NAN,
+            rejected_above_limit: 0,
         },
         wavefunctions,
         finest_grid: grid,

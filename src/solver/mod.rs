@@ -168,6 +168,9 @@ pub struct CountAudit {
     pub stable_on_doubling: bool,
     /// A further level would have to be bound by less than this (hartree) to be missed.
     pub undetectable_binding: f64,
+    /// Levels the coarse counting grid placed below the limit that rose above it once
+    /// converged (discretisation artefacts); they are not reported as bound.
+    pub rejected_above_limit: usize,
 }
 
 /// Every level asked for at one J, with what is needed to interpret them.
@@ -351,6 +354,7 @@ fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &Well
                 box_outer: hi,
                 stable_on_doubling: false,
                 undetectable_binding: f64::NAN,
+                rejected_above_limit: 0,
             },
         });
     }
@@ -375,6 +379,13 @@ fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &Well
         }
         (coarse, count, end) = (wider, wider_count, doubled);
     }
+    // The coarse step can also push a level just below the limit above it: count again on
+    // the finest step of the Richardson sequence and keep the larger count (levels that end
+    // up above the limit once converged are rejected later).
+    if facts.top_is_limit {
+        let fine = check_grid(problem, facts, &coarse.refined(4))?;
+        count = count.max(fine.count_below(facts.top - facts.curve_minimum));
+    }
     // A level needing more than twice this box to show would be bound by less than this.
     let undetectable_binding = if facts.top_is_limit {
         let reach = 2.0 * (end - start);
@@ -389,6 +400,7 @@ fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &Well
             box_outer: coarse.end(),
             stable_on_doubling: stable,
             undetectable_binding,
+            rejected_above_limit: 0,
         },
     })
 }
@@ -445,11 +457,22 @@ fn solve_numerov(problem: &RadialProblem, settings: &SolverSettings, facts: &Wel
     let mut levels = Vec::with_capacity(count);
     let mut wavefunctions = Vec::new();
     let mut finest_grid = counting.coarse;
+    let mut audit = counting.audit.clone();
     for result in solved {
         let s = result?;
+        // The coarse count can hold a level just above the limit (coarse Numerov lowers
+        // energies); converged, it is not bound.
+        if facts.top_is_limit && s.level.energy >= facts.top {
+            audit.rejected_above_limit += 1;
+            audit.bound_levels -= 1;
+            continue;
+        }
         finest_grid = s.grid;
         levels.push(s.level);
         wavefunctions.extend(s.wavefunction);
+    }
+    if levels.is_empty() {
+        return Err(SolverError::NothingBound { j: problem.j });
     }
     Ok(LevelSet {
         j: problem.j,
@@ -458,7 +481,7 @@ fn solve_numerov(problem: &RadialProblem, settings: &SolverSettings, facts: &Wel
         curve_minimum: facts.curve_minimum,
         limit: problem.curve.limit(),
         levels,
-        audit: counting.audit,
+        audit,
         wavefunctions,
         finest_grid,
     })
