@@ -11,7 +11,7 @@
 pub mod curve;
 pub mod masses;
 pub mod reader;
-pub mod solver;
-pub mod units;
 pub mod report;
+pub mod solver;
 pub mod survey;
+pub mod units;

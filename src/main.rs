@@ -31,11 +31,15 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     /// The well, harmonic constants, a WKB level count and turning points of a curve.
-    #[command(after_help = "Examples:\n  rungs inspect curves/hcl_morse.toml\n  rungs inspect --model 'morse:omega_e=2990.946 cm-1,omega_e_x_e=52.8186 cm-1,r_e=1.27455 angstrom' --atoms 1H 35Cl --at '5000 cm-1'\n  rungs inspect curves/h2_points.toml --format json")]
+    #[command(
+        after_help = "Examples:\n  rungs inspect curves/demo_morse.toml\n  rungs inspect --model 'morse:omega_e=2990.946 cm-1,omega_e_x_e=52.8186 cm-1,r_e=1.27455 angstrom' --atoms 1H 35Cl --at '5000 cm-1'\n  rungs inspect curves/h2_born_oppenheimer.toml --format json"
+    )]
     Inspect(InspectArgs),
     /// Every bound vibrational level (any J) with its diagnostics, and wavefunctions on request.
-    #[command(after_help = "Examples:\n  rungs levels curves/hcl_morse.toml\n  rungs levels curves/h2_points.toml --j 0-5 --format csv\n  rungs levels curves/hcl_morse.toml --all-j --energy-unit eV\n  rungs levels curves/hcl_morse.toml --wavefunctions psi.csv --v 0,1,2")]
-    Levels(LevelsArgs),
+    #[command(
+        after_help = "Examples:\n  rungs levels curves/demo_morse.toml\n  rungs levels curves/h2_born_oppenheimer.toml --j 0-5 --format csv\n  rungs levels curves/demo_morse.toml --all-j --energy-unit eV\n  rungs levels curves/demo_morse.toml --wavefunctions psi.csv --v 0,1,2"
+    )]
+    Levels(Box<LevelsArgs>),
 }
 
 #[derive(Args)]
@@ -149,7 +153,11 @@ fn load_curve(args: &CurveArgs) -> Result<CurveSetup> {
                 .ok_or_else(|| bad_input("--model needs --atoms, e.g. --atoms 1H 35Cl"))?;
             reader::parse_inline_model(spec, atoms, args.charge.unwrap_or(0))
         }
-        _ => return Err(bad_input("give a curve file, or --model with --atoms; see 'rungs help inspect'")),
+        _ => {
+            return Err(bad_input(
+                "give a curve file, or --model with --atoms; see 'rungs help inspect'",
+            ))
+        }
     };
     let setup = setup.map_err(|e| bad_input(e.to_string()))?;
     for warning in &setup.warnings {
@@ -164,17 +172,22 @@ fn quantity(text: &str, dimension: Dimension, option: &str) -> Result<f64> {
 
 fn display_units(args: &OutputArgs) -> Result<DisplayUnits> {
     Ok(DisplayUnits {
-        energy: units::parse_unit(&args.energy_unit, Dimension::Energy).map_err(|e| bad_input(format!("--energy-unit: {e}")))?,
-        length: units::parse_unit(&args.length_unit, Dimension::Length).map_err(|e| bad_input(format!("--length-unit: {e}")))?,
+        energy: units::parse_unit(&args.energy_unit, Dimension::Energy)
+            .map_err(|e| bad_input(format!("--energy-unit: {e}")))?,
+        length: units::parse_unit(&args.length_unit, Dimension::Length)
+            .map_err(|e| bad_input(format!("--length-unit: {e}")))?,
     })
 }
 
 fn write_output(text: &str, path: Option<&Path>) -> Result<()> {
     match path {
-        Some(p) if p != Path::new("-") => std::fs::write(p, text).with_context(|| format!("cannot write '{}'", p.display())),
+        Some(p) if p != Path::new("-") => {
+            std::fs::write(p, text).with_context(|| format!("cannot write '{}'", p.display()))
+        }
         _ => {
             let mut out = std::io::stdout().lock();
-            out.write_all(text.as_bytes()).context("cannot write to standard output")
+            out.write_all(text.as_bytes())
+                .context("cannot write to standard output")
         }
     }
 }
@@ -186,7 +199,11 @@ fn print_table(table: &Table, args: &OutputArgs) -> Result<()> {
 fn inspect(args: InspectArgs) -> Result<ExitCode> {
     let setup = load_curve(&args.curve)?;
     let units = display_units(&args.output)?;
-    let at = args.at.as_deref().map(|t| quantity(t, Dimension::Energy, "--at")).transpose()?;
+    let at = args
+        .at
+        .as_deref()
+        .map(|t| quantity(t, Dimension::Energy, "--at"))
+        .transpose()?;
     let survey = rungs::survey::survey(setup.curve.as_ref(), &setup.pair, at)
         .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
     print_table(&survey_table(&survey, &setup, units), &args.output)?;
@@ -194,7 +211,11 @@ fn inspect(args: InspectArgs) -> Result<ExitCode> {
 }
 
 fn j_values(text: &str) -> Result<(u32, u32)> {
-    let parse = |t: &str| t.trim().parse::<u32>().map_err(|_| bad_input(format!("--j: '{text}' is not a J or a range such as 0-10")));
+    let parse = |t: &str| {
+        t.trim()
+            .parse::<u32>()
+            .map_err(|_| bad_input(format!("--j: '{text}' is not a J or a range such as 0-10")))
+    };
     match text.split_once('-') {
         Some((a, b)) => {
             let (a, b) = (parse(a)?, parse(b)?);
@@ -208,8 +229,15 @@ fn j_values(text: &str) -> Result<(u32, u32)> {
 }
 
 fn solver_settings(args: &LevelsArgs, setup: &CurveSetup) -> Result<SolverSettings> {
-    let length = |t: &Option<String>, o: &str| t.as_deref().map(|t| quantity(t, Dimension::Length, o)).transpose();
-    let r_range = match (length(&args.r_min, "--r-min")?, length(&args.r_max, "--r-max")?) {
+    let length = |t: &Option<String>, o: &str| {
+        t.as_deref()
+            .map(|t| quantity(t, Dimension::Length, o))
+            .transpose()
+    };
+    let r_range = match (
+        length(&args.r_min, "--r-min")?,
+        length(&args.r_max, "--r-max")?,
+    ) {
         (Some(a), Some(b)) if a < b => Some((a, b)),
         (Some(_), Some(_)) => return Err(bad_input("--r-min must be below --r-max")),
         _ => setup.solver.r_range,
@@ -221,8 +249,16 @@ fn solver_settings(args: &LevelsArgs, setup: &CurveSetup) -> Result<SolverSettin
         .map(|t| quantity(t, Dimension::Energy, "--tolerance"))
         .transpose()?
         .or(setup.solver.tolerance);
-    let ceiling = args.ceiling.as_deref().map(|t| quantity(t, Dimension::Energy, "--ceiling")).transpose()?;
-    let method = if args.method == "dvr" { Method::SincDvr } else { Method::Numerov };
+    let ceiling = args
+        .ceiling
+        .as_deref()
+        .map(|t| quantity(t, Dimension::Energy, "--ceiling"))
+        .transpose()?;
+    let method = if args.method == "dvr" {
+        Method::SincDvr
+    } else {
+        Method::Numerov
+    };
     let mut settings = SolverSettings::default()
         .with_method(method)
         .with_highest_v(args.vmax)
@@ -261,7 +297,8 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
     };
     let mut sets: Vec<LevelSet> = Vec::new();
     if args.all_j {
-        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings).map_err(|e| solver_failure(&setup.source, e))?;
+        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings)
+            .map_err(|e| solver_failure(&setup.source, e))?;
     } else {
         let (first, last) = j_values(&args.j)?;
         for j in first..=last {
@@ -289,14 +326,18 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
     }
     print_table(&levels_table(&sets, &setup.pair, units), &args.output)?;
     let unconverged = sets.iter().any(|s| s.unconverged().next().is_some());
-    Ok(if unconverged { ExitCode::from(3) } else { ExitCode::SUCCESS })
+    Ok(if unconverged {
+        ExitCode::from(3)
+    } else {
+        ExitCode::SUCCESS
+    })
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Inspect(args) => inspect(args),
-        Command::Levels(args) => levels(args),
+        Command::Levels(args) => levels(*args),
     };
     match result {
         Ok(code) => code,

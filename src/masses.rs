@@ -130,7 +130,10 @@ impl Atom {
     /// Read an atom: a nuclide label, or a mass with its unit ("34.96885 u", "5.8e-26 kg").
     pub fn parse(text: &str) -> Result<Atom, MassError> {
         let text = text.trim();
-        if text.chars().next().is_some_and(|c| c.is_ascii_digit() || c == '-' || c == '.')
+        if text
+            .chars()
+            .next()
+            .is_some_and(|c| c.is_ascii_digit() || c == '-' || c == '.')
             && text.contains(|c: char| c.is_whitespace())
         {
             let mass = units::parse_quantity(text, Dimension::Mass)?;

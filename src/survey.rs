@@ -34,7 +34,14 @@ pub struct Survey {
 
 /// (1/pi) int sqrt(2 mu (E - V)) dr over the allowed region, for E below the limit
 /// (turning points r1 < r2) or at the limit (r2 = infinity, handled by r = r_e / u).
-pub fn phase_integral_over_pi(curve: &dyn PotentialCurve, reduced_mass: f64, energy: f64, r1: f64, r2: Option<f64>, r_e: f64) -> f64 {
+pub fn phase_integral_over_pi(
+    curve: &dyn PotentialCurve,
+    reduced_mass: f64,
+    energy: f64,
+    r1: f64,
+    r2: Option<f64>,
+    r_e: f64,
+) -> f64 {
     let momentum = |r: f64| (2.0 * reduced_mass * (energy - curve.value(r)).max(0.0)).sqrt();
     // Midpoint rule in theta with r = a + (b - a)(1 - cos theta)/2: smooth at sqrt endpoints.
     let between = |a: f64, b: f64, panels: usize| {
@@ -78,7 +85,11 @@ pub fn phase_integral_over_pi(curve: &dyn PotentialCurve, reduced_mass: f64, ene
 }
 
 /// Survey a curve for a pair; `energy_above_minimum` asks for turning points there.
-pub fn survey(curve: &dyn PotentialCurve, pair: &Pair, energy_above_minimum: Option<f64>) -> Result<Survey, ShapeError> {
+pub fn survey(
+    curve: &dyn PotentialCurve,
+    pair: &Pair,
+    energy_above_minimum: Option<f64>,
+) -> Result<Survey, ShapeError> {
     let mu = pair.reduced_mass();
     let well = find_well(curve)?;
     let limit = curve.limit();
@@ -87,10 +98,23 @@ pub fn survey(curve: &dyn PotentialCurve, pair: &Pair, energy_above_minimum: Opt
     let far = 1e4 * well.r_min;
     let wkb_index_at_limit = limit.map(|l| {
         let (inner, _) = turning_points_with(&potential, well.r_min, l, 1e-6 * well.r_min, far);
-        phase_integral_over_pi(curve, mu, l, inner.unwrap_or(1e-6 * well.r_min), None, well.r_min) - 0.5
+        phase_integral_over_pi(
+            curve,
+            mu,
+            l,
+            inner.unwrap_or(1e-6 * well.r_min),
+            None,
+            well.r_min,
+        ) - 0.5
     });
     let turning_points = energy_above_minimum.map(|e| {
-        let (inner, outer) = turning_points_with(&potential, well.r_min, well.v_min + e, 1e-6 * well.r_min, far);
+        let (inner, outer) = turning_points_with(
+            &potential,
+            well.r_min,
+            well.v_min + e,
+            1e-6 * well.r_min,
+            far,
+        );
         (e, inner, outer)
     });
     Ok(Survey {

@@ -148,20 +148,50 @@ const fn unit(
 ///
 /// Energies: k_B T for `K`, h nu for `MHz`/`GHz`; molar energies per mole of molecules.
 pub const UNITS: &[Unit] = &[
-    unit("cm-1", &["cm^-1", "1/cm", "cm**-1"], Dimension::Energy, HARTREE_PER_WAVENUMBER),
-    unit("hartree", &["Eh", "E_h", "au_energy"], Dimension::Energy, 1.0),
-    unit("eV", &["ev"], Dimension::Energy, codata::ELEMENTARY_CHARGE / codata::HARTREE),
-    unit("kJ/mol", &["kj/mol"], Dimension::Energy, 1e3 / (codata::AVOGADRO * codata::HARTREE)),
+    unit(
+        "cm-1",
+        &["cm^-1", "1/cm", "cm**-1"],
+        Dimension::Energy,
+        HARTREE_PER_WAVENUMBER,
+    ),
+    unit(
+        "hartree",
+        &["Eh", "E_h", "au_energy"],
+        Dimension::Energy,
+        1.0,
+    ),
+    unit(
+        "eV",
+        &["ev"],
+        Dimension::Energy,
+        codata::ELEMENTARY_CHARGE / codata::HARTREE,
+    ),
+    unit(
+        "kJ/mol",
+        &["kj/mol"],
+        Dimension::Energy,
+        1e3 / (codata::AVOGADRO * codata::HARTREE),
+    ),
     unit(
         "kcal/mol",
         &[],
         Dimension::Energy,
         4184.0 / (codata::AVOGADRO * codata::HARTREE),
     ),
-    unit("K", &["kelvin"], Dimension::Energy, codata::BOLTZMANN / codata::HARTREE),
+    unit(
+        "K",
+        &["kelvin"],
+        Dimension::Energy,
+        codata::BOLTZMANN / codata::HARTREE,
+    ),
     unit("MHz", &[], Dimension::Energy, 1e6 / codata::HARTREE_HERTZ),
     unit("GHz", &[], Dimension::Energy, 1e9 / codata::HARTREE_HERTZ),
-    unit("angstrom", &["A", "Å", "Angstrom", "ang"], Dimension::Length, BOHR_PER_ANGSTROM),
+    unit(
+        "angstrom",
+        &["A", "Å", "Angstrom", "ang"],
+        Dimension::Length,
+        BOHR_PER_ANGSTROM,
+    ),
     unit("bohr", &["a0", "a_0", "au_length"], Dimension::Length, 1.0),
     unit("nm", &[], Dimension::Length, 10.0 * BOHR_PER_ANGSTROM),
     unit("pm", &[], Dimension::Length, 0.01 * BOHR_PER_ANGSTROM),
@@ -171,8 +201,18 @@ pub const UNITS: &[Unit] = &[
         Dimension::InverseLength,
         1.0 / BOHR_PER_ANGSTROM,
     ),
-    unit("1/bohr", &["bohr^-1", "bohr-1", "1/a0"], Dimension::InverseLength, 1.0),
-    unit("u", &["Da", "amu"], Dimension::Mass, ELECTRON_MASSES_PER_DALTON),
+    unit(
+        "1/bohr",
+        &["bohr^-1", "bohr-1", "1/a0"],
+        Dimension::InverseLength,
+        1.0,
+    ),
+    unit(
+        "u",
+        &["Da", "amu"],
+        Dimension::Mass,
+        ELECTRON_MASSES_PER_DALTON,
+    ),
     unit("kg", &[], Dimension::Mass, 1.0 / codata::ELECTRON_MASS),
     unit("m_e", &["me"], Dimension::Mass, 1.0),
     unit(
@@ -199,7 +239,12 @@ pub const UNITS: &[Unit] = &[
         Dimension::DipoleMoment,
         1e-21 / codata::SPEED_OF_LIGHT / codata::DIPOLE_AU,
     ),
-    unit("e*a0", &["ea0", "e a0", "au_dipole"], Dimension::DipoleMoment, 1.0),
+    unit(
+        "e*a0",
+        &["ea0", "e a0", "au_dipole"],
+        Dimension::DipoleMoment,
+        1.0,
+    ),
 ];
 
 /// Problems reading a unit or a quantity.
@@ -309,7 +354,7 @@ fn split_number(text: &str) -> Option<(f64, &str)> {
 /// ```
 /// use rungs::units::{parse_quantity, Dimension};
 /// let r_e = parse_quantity("1.27455 angstrom", Dimension::Length).unwrap();
-/// assert!((r_e - 2.408545).abs() < 1e-6); // bohr (1.27455 / 0.529177210903)
+/// assert!((r_e - 2.4085504).abs() < 1e-6); // bohr (1.27455 / 0.529177210903)
 /// ```
 pub fn parse_quantity(text: &str, dimension: Dimension) -> Result<f64, UnitError> {
     let example = example_for(dimension).to_string();

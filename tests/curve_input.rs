@@ -40,7 +40,10 @@ fn ame2020_masses_of_the_selection() {
     // Phys. C 45, 030002/030003 (2021)).
     let text = std::fs::read_to_string("tests/data/ame2020_selected_masses.csv").unwrap();
     let mut checked = 0;
-    for line in text.lines().filter(|l| !l.starts_with('#') && !l.starts_with('A')) {
+    for line in text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with('A'))
+    {
         let cells: Vec<&str> = line.split(',').collect();
         let label = format!("{}{}", cells[0], cells[1]);
         let expected: f64 = cells[2].parse().unwrap();
@@ -83,20 +86,35 @@ fn hcl_morse_from_huber_herzberg() {
     // B_e = 10.5934 cm-1 from r_e (the check value; H&H list 10.593416).
     assert!((to_wavenumber(s.rotational_constant) - 10.5934).abs() < 5e-5);
     // k = 516 N/m, the textbook force constant of HCl (common practice, to 3 figures).
-    let k = parse_unit("N/m", Dimension::ForceConstant).unwrap().from_atomic(s.well.force_constant);
+    let k = parse_unit("N/m", Dimension::ForceConstant)
+        .unwrap()
+        .from_atomic(s.well.force_constant);
     assert!((k - 516.0).abs() < 0.5, "{k}");
     // WKB count at the limit is exact for a Morse: floor(lambda - 1/2) + 1 (Morse 1929).
-    assert_eq!(s.wkb_level_count, Some(morse.exact_level_count(setup.pair.reduced_mass())));
+    assert_eq!(
+        s.wkb_level_count,
+        Some(morse.exact_level_count(setup.pair.reduced_mass()))
+    );
 }
 
 fn morse_points(first: f64, span: f64) -> (Morse, Vec<(f64, f64)>) {
     let morse = Morse::new(0.17, 1.0, 1.4);
-    let points = (0..40).map(|i| first + span / 39.0 * f64::from(i)).map(|r| (r, morse.value(r))).collect();
+    let points = (0..40)
+        .map(|i| first + span / 39.0 * f64::from(i))
+        .map(|r| (r, morse.value(r)))
+        .collect();
     (morse, points)
 }
 
 fn not_a_knot(points: Vec<(f64, f64)>) -> TabulatedCurve {
-    TabulatedCurve::new(points, SplineEnd::NotAKnot, InnerWall::Exponential, OuterTail::Exponential, Some(0.17)).unwrap()
+    TabulatedCurve::new(
+        points,
+        SplineEnd::NotAKnot,
+        InnerWall::Exponential,
+        OuterTail::Exponential,
+        Some(0.17),
+    )
+    .unwrap()
 }
 
 #[test]
@@ -135,7 +153,11 @@ fn spline_matches_a_reference_library() {
 
 #[test]
 fn h2_points_load_spline_and_extrapolate() {
-    let setup = read_curve_file(Path::new("curves/h2_born_oppenheimer.toml"), &PairOverride::default()).unwrap();
+    let setup = read_curve_file(
+        Path::new("curves/h2_born_oppenheimer.toml"),
+        &PairOverride::default(),
+    )
+    .unwrap();
     let join = setup.join.expect("a tabulated curve reports its join");
     // The tail is fitted to pass through the last point: no value mismatch there.
     assert!(join.outer_value_mismatch.abs() < 1e-12);

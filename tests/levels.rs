@@ -21,11 +21,22 @@ fn harmonic_levels() {
     let mu = mu_of("1H", "35Cl");
     let omega = from_wavenumber(2990.9463);
     let oscillator = Harmonic::from_vibrational_energy(omega, from_angstrom(1.27455), mu);
-    let set = levels(&oscillator, mu, 0, &SolverSettings::default().with_highest_v(Some(5)));
+    let set = levels(
+        &oscillator,
+        mu,
+        0,
+        &SolverSettings::default().with_highest_v(Some(5)),
+    );
     assert_eq!(set.levels.len(), 6);
     for level in &set.levels {
         let exact = omega * (f64::from(level.v) + 0.5);
-        assert!(((level.energy - exact) / exact).abs() < 1e-8, "v={} {} {}", level.v, level.energy, exact);
+        assert!(
+            ((level.energy - exact) / exact).abs() < 1e-8,
+            "v={} {} {}",
+            level.v,
+            level.energy,
+            exact
+        );
         assert!(level.converged);
     }
 }
@@ -34,7 +45,13 @@ fn harmonic_levels() {
 /// (Morse, Phys. Rev. 34, 57 (1929); ../shared/reference/morse_exact.txt).
 fn check_morse(morse: &Morse, mu: f64) -> LevelSet {
     let set = levels(morse, mu, 0, &SolverSettings::default());
-    assert_eq!(set.levels.len() as u32, morse.exact_level_count(mu), "lambda {} audit {:?}", morse.lambda(mu), set.audit);
+    assert_eq!(
+        set.levels.len() as u32,
+        morse.exact_level_count(mu),
+        "lambda {} audit {:?}",
+        morse.lambda(mu),
+        set.audit
+    );
     assert_eq!(set.audit.bound_levels as u32, morse.exact_level_count(mu));
     for level in &set.levels {
         let error = to_wavenumber(level.energy - morse.exact_level(level.v, mu));
@@ -49,7 +66,12 @@ fn morse_light_molecule() {
     // H2-like Morse from the Huber-Herzberg omega_e = 4401.213, omega_e x_e = 121.336 cm-1,
     // r_e = 0.74144 angstrom (tests/data/diatomic_constants.csv): 18 levels.
     let mu = mu_of("1H", "1H");
-    let morse = Morse::from_spectroscopic(from_wavenumber(4401.213), from_wavenumber(121.336), from_angstrom(0.74144), mu);
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(4401.213),
+        from_wavenumber(121.336),
+        from_angstrom(0.74144),
+        mu,
+    );
     check_morse(&morse, mu);
 }
 
@@ -58,7 +80,12 @@ fn morse_heavy_molecule_over_a_hundred_levels() {
     // I2-like Morse from the Huber-Herzberg omega_e = 214.502, omega_e x_e = 0.6147 cm-1,
     // r_e = 2.6663 angstrom (tests/data/diatomic_constants.csv): 175 levels.
     let mu = mu_of("127I", "127I");
-    let morse = Morse::from_spectroscopic(from_wavenumber(214.502), from_wavenumber(0.6147), from_angstrom(2.6663), mu);
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(214.502),
+        from_wavenumber(0.6147),
+        from_angstrom(2.6663),
+        mu,
+    );
     let set = check_morse(&morse, mu);
     assert!(set.levels.len() > 100);
 }
@@ -87,8 +114,18 @@ fn rotational_constants_follow_pekeris() {
     // to first order. HCl constants (Huber-Herzberg). The next term, gamma_e (v+1/2)^2, is of
     // order alpha_e^2 / B_e (Dunham's expansion; recalled from memory), which bounds the check.
     let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(from_wavenumber(2990.9463), from_wavenumber(52.8186), from_angstrom(1.27455), mu);
-    let set = levels(&morse, mu, 0, &SolverSettings::default().with_highest_v(Some(3)));
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(2990.9463),
+        from_wavenumber(52.8186),
+        from_angstrom(1.27455),
+        mu,
+    );
+    let set = levels(
+        &morse,
+        mu,
+        0,
+        &SolverSettings::default().with_highest_v(Some(3)),
+    );
     let (we, wexe) = (morse.omega_e(mu), morse.omega_e_x_e(mu));
     let b_e = 1.0 / (2.0 * mu * morse.r_e * morse.r_e);
     let alpha = 6.0 * (wexe * b_e.powi(3)).sqrt() / we - 6.0 * b_e * b_e / we;
@@ -97,7 +134,13 @@ fn rotational_constants_follow_pekeris() {
         let pekeris = b_e - alpha * x;
         let next_order = alpha * alpha / b_e * x * x;
         let difference = (level.rotational_constant - pekeris).abs();
-        assert!(difference < next_order, "v={} diff {:e} bound {:e}", level.v, to_wavenumber(difference), to_wavenumber(next_order));
+        assert!(
+            difference < next_order,
+            "v={} diff {:e} bound {:e}",
+            level.v,
+            to_wavenumber(difference),
+            to_wavenumber(next_order)
+        );
     }
 }
 
@@ -106,13 +149,24 @@ fn rotational_constant_is_the_energy_slope_in_j() {
     // Hellmann-Feynman: dE/d[J(J+1)] = <1/(2 mu r^2)> = B_v; a centred difference of E(J)
     // over J(J+1) (J = 1, 2) checks B_v to the size of the centrifugal distortion, 2 D_v (v=0).
     let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(from_wavenumber(2990.9463), from_wavenumber(52.8186), from_angstrom(1.27455), mu);
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(2990.9463),
+        from_wavenumber(52.8186),
+        from_angstrom(1.27455),
+        mu,
+    );
     let settings = SolverSettings::default().with_highest_v(Some(0));
-    let e: Vec<f64> = (0..3).map(|j| levels(&morse, mu, j, &settings).levels[0].energy).collect();
+    let e: Vec<f64> = (0..3)
+        .map(|j| levels(&morse, mu, j, &settings).levels[0].energy)
+        .collect();
     let b0 = levels(&morse, mu, 0, &settings).levels[0].rotational_constant;
     let slope = (e[2] - e[0]) / 6.0;
     // D_e(centrifugal) of HCl 5.3e-4 cm-1 (Huber-Herzberg): E(J) = B J(J+1) - D [J(J+1)]^2.
-    assert!((to_wavenumber(slope - b0)).abs() < 10.0 * 5.3e-4, "{}", to_wavenumber(slope - b0));
+    assert!(
+        (to_wavenumber(slope - b0)).abs() < 10.0 * 5.3e-4,
+        "{}",
+        to_wavenumber(slope - b0)
+    );
 }
 
 #[test]
@@ -120,14 +174,26 @@ fn h2_born_oppenheimer_levels() {
     // Sims & Hagstrom (2006) points, tail L - C6/r^6 - C8/r^8 - C10/r^10: exactly 15 bound levels
     // for J = 0 and G(v) within 10 cm-1 of Roueff et al., A&A 630, A58 (2019)
     // (tests/data/h2_x_levels_j0.csv; the difference is the non-Born-Oppenheimer correction).
-    let setup = read_curve_file(Path::new("curves/h2_born_oppenheimer.toml"), &PairOverride::default()).unwrap();
-    let set = levels(setup.curve.as_ref(), setup.pair.reduced_mass(), 0, &SolverSettings::default());
+    let setup = read_curve_file(
+        Path::new("curves/h2_born_oppenheimer.toml"),
+        &PairOverride::default(),
+    )
+    .unwrap();
+    let set = levels(
+        setup.curve.as_ref(),
+        setup.pair.reduced_mass(),
+        0,
+        &SolverSettings::default(),
+    );
     assert_eq!(set.levels.len(), 15);
     assert_eq!(set.audit.bound_levels, 15);
     assert!(set.audit.stable_on_doubling);
     let published = std::fs::read_to_string("tests/data/h2_x_levels_j0.csv").unwrap();
     let ground = set.levels[0].energy;
-    for line in published.lines().filter(|l| !l.starts_with('#') && !l.starts_with('v')) {
+    for line in published
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with('v'))
+    {
         let (v, g) = line.split_once(',').unwrap();
         let v: usize = v.parse().unwrap();
         let g: f64 = g.parse().unwrap();
@@ -138,42 +204,77 @@ fn h2_born_oppenheimer_levels() {
 
 fn assert_methods_agree(curve: &dyn PotentialCurve, mu: f64) {
     let numerov = levels(curve, mu, 0, &SolverSettings::default());
-    let dvr = levels(curve, mu, 0, &SolverSettings::default().with_method(Method::SincDvr));
+    let dvr = levels(
+        curve,
+        mu,
+        0,
+        &SolverSettings::default().with_method(Method::SincDvr),
+    );
     assert_eq!(numerov.levels.len(), dvr.levels.len());
     for (a, b) in numerov.levels.iter().zip(&dvr.levels) {
         // Each within its own estimate, plus the 1e-6 cm-1 tolerance each method promises.
         let allowed = a.error_estimate + b.error_estimate + from_wavenumber(2e-6);
-        assert!((a.energy - b.energy).abs() < allowed, "v={}: {:e} cm-1", a.v, to_wavenumber(a.energy - b.energy));
+        assert!(
+            (a.energy - b.energy).abs() < allowed,
+            "v={}: {:e} cm-1",
+            a.v,
+            to_wavenumber(a.energy - b.energy)
+        );
     }
 }
 
 #[test]
 fn methods_agree_on_test_curves() {
     let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(from_wavenumber(2990.9463), from_wavenumber(52.8186), from_angstrom(1.27455), mu);
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(2990.9463),
+        from_wavenumber(52.8186),
+        from_angstrom(1.27455),
+        mu,
+    );
     assert_methods_agree(&morse, mu);
     // A Lennard-Jones 12-6 well (invented parameters: epsilon 500 cm-1, r_e 3.5 angstrom) with Ar-Ar masses.
     let lj = LennardJones::new(from_wavenumber(500.0), from_angstrom(3.5), 12.0, 6.0);
     assert_methods_agree(&lj, mu_of("40Ar", "40Ar"));
-    let setup = read_curve_file(Path::new("curves/demo_morse.toml"), &PairOverride::default()).unwrap();
+    let setup = read_curve_file(
+        Path::new("curves/demo_morse.toml"),
+        &PairOverride::default(),
+    )
+    .unwrap();
     assert_methods_agree(setup.curve.as_ref(), setup.pair.reduced_mass());
 }
 
 #[test]
 fn solver_refuses_bad_problems() {
     let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(from_wavenumber(2990.9463), from_wavenumber(52.8186), from_angstrom(1.27455), mu);
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(2990.9463),
+        from_wavenumber(52.8186),
+        from_angstrom(1.27455),
+        mu,
+    );
     // A J with no bound level.
-    let err = solve(&RadialProblem::new(&morse, mu, 400), &SolverSettings::default()).unwrap_err();
+    let err = solve(
+        &RadialProblem::new(&morse, mu, 400),
+        &SolverSettings::default(),
+    )
+    .unwrap_err();
     assert!(matches!(err, SolverError::NothingBound { j: 400 }), "{err}");
     // A curve with no well: a Morse turned upside down has no minimum.
     let hill = Morse::new(-0.1, 1.0, 2.4);
-    assert!(solve(&RadialProblem::new(&hill, mu, 0), &SolverSettings::default()).is_err());
+    assert!(solve(
+        &RadialProblem::new(&hill, mu, 0),
+        &SolverSettings::default()
+    )
+    .is_err());
     // A grid step far too coarse for the well.
     let coarse = SolverSettings::default().with_grid(None, Some(0.5));
     let err = solve(&RadialProblem::new(&morse, mu, 0), &coarse).unwrap_err();
     assert!(matches!(err, SolverError::UnderResolved { .. }), "{err}");
     // A range that misses the well.
     let off = SolverSettings::default().with_grid(Some((3.0, 9.0)), None);
-    assert!(matches!(solve(&RadialProblem::new(&morse, mu, 0), &off).unwrap_err(), SolverError::RangeMissesWell { .. }));
+    assert!(matches!(
+        solve(&RadialProblem::new(&morse, mu, 0), &off).unwrap_err(),
+        SolverError::RangeMissesWell { .. }
+    ));
 }

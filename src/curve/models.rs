@@ -21,7 +21,10 @@ pub struct Harmonic {
 
 impl Harmonic {
     pub fn new(force_constant: f64, r_e: f64) -> Harmonic {
-        Harmonic { force_constant, r_e }
+        Harmonic {
+            force_constant,
+            r_e,
+        }
     }
 
     /// From the harmonic vibrational energy hbar omega (hartree) and the reduced mass (m_e):
@@ -87,13 +90,23 @@ impl Morse {
 
     /// From omega_e and omega_e x_e (both hartree): D_e = omega_e^2 / (4 omega_e x_e),
     /// a = omega_e sqrt(mu / (2 D_e)).
-    pub fn from_spectroscopic(omega_e: f64, omega_e_x_e: f64, r_e: f64, reduced_mass: f64) -> Morse {
+    pub fn from_spectroscopic(
+        omega_e: f64,
+        omega_e_x_e: f64,
+        r_e: f64,
+        reduced_mass: f64,
+    ) -> Morse {
         let well_depth = omega_e * omega_e / (4.0 * omega_e_x_e);
         Morse::from_depth_and_omega(well_depth, omega_e, r_e, reduced_mass)
     }
 
     /// From D_e and omega_e (both hartree): a = omega_e sqrt(mu / (2 D_e)).
-    pub fn from_depth_and_omega(well_depth: f64, omega_e: f64, r_e: f64, reduced_mass: f64) -> Morse {
+    pub fn from_depth_and_omega(
+        well_depth: f64,
+        omega_e: f64,
+        r_e: f64,
+        reduced_mass: f64,
+    ) -> Morse {
         let width = omega_e * (reduced_mass / (2.0 * well_depth)).sqrt();
         Morse::new(well_depth, width, r_e)
     }
@@ -212,7 +225,8 @@ impl PotentialCurve for LennardJones {
     fn second_derivative(&self, r: f64) -> f64 {
         let (n, m) = (self.repulsive_power, self.attractive_power);
         let s = self.r_e / r;
-        self.well_depth * n * m / ((n - m) * r * r) * ((n + 1.0) * s.powf(n) - (m + 1.0) * s.powf(m))
+        self.well_depth * n * m / ((n - m) * r * r)
+            * ((n + 1.0) * s.powf(n) - (m + 1.0) * s.powf(m))
     }
     fn limit(&self) -> Option<f64> {
         Some(0.0)
@@ -244,8 +258,14 @@ mod tests {
         let d1 = (curve.value(r + h) - curve.value(r - h)) / (2.0 * h);
         let d2 = (curve.value(r + h) - 2.0 * curve.value(r) + curve.value(r - h)) / (h * h);
         let scale = curve.derivative(r).abs() + curve.second_derivative(r).abs() + 1e-12;
-        assert!((d1 - curve.derivative(r)).abs() < 1e-6 * scale, "{curve:?} at {r}");
-        assert!((d2 - curve.second_derivative(r)).abs() < 1e-4 * scale, "{curve:?} at {r}");
+        assert!(
+            (d1 - curve.derivative(r)).abs() < 1e-6 * scale,
+            "{curve:?} at {r}"
+        );
+        assert!(
+            (d2 - curve.second_derivative(r)).abs() < 1e-4 * scale,
+            "{curve:?} at {r}"
+        );
     }
 
     #[test]

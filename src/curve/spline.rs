@@ -84,7 +84,8 @@ impl CubicSpline {
         let (m0, m1) = (self.second[i], self.second[i + 1]);
         let (y0, y1) = (self.y[i], self.y[i + 1]);
         let value = u * y0 + t * y1 + h * h / 6.0 * ((u * u * u - u) * m0 + (t * t * t - t) * m1);
-        let slope = (y1 - y0) / h + h / 6.0 * (-(3.0 * u * u - 1.0) * m0 + (3.0 * t * t - 1.0) * m1);
+        let slope =
+            (y1 - y0) / h + h / 6.0 * (-(3.0 * u * u - 1.0) * m0 + (3.0 * t * t - 1.0) * m1);
         let curvature = u * m0 + t * m1;
         (value, slope, curvature)
     }

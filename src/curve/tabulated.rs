@@ -46,7 +46,11 @@ pub enum TabulatedError {
     #[error("point at r = {r} bohr is not finite")]
     NotFinite { r: f64 },
     #[error("the three innermost points (r = {r0:.4} .. {r2:.4} bohr) do not rise steeply enough inward for a repulsive {form} wall; add points further in, or choose the other inner_wall form")]
-    WallNotRepulsive { form: &'static str, r0: f64, r2: f64 },
+    WallNotRepulsive {
+        form: &'static str,
+        r0: f64,
+        r2: f64,
+    },
     #[error("the outermost points cannot be joined to the limit {limit:.8} hartree by the chosen tail: {why}; give the limit, more points further out, or another outer_tail form")]
     TailFit { limit: f64, why: String },
     #[error("the outer tail needs {needed} points for its fit but the table has {found}")]
@@ -89,7 +93,11 @@ impl Wall {
     }
     fn evaluate(&self, r: f64) -> (f64, f64, f64) {
         let (f, d1, d2) = self.basis(r);
-        (self.offset + self.scale * f, self.scale * d1, self.scale * d2)
+        (
+            self.offset + self.scale * f,
+            self.scale * d1,
+            self.scale * d2,
+        )
     }
 }
 
@@ -145,8 +153,16 @@ fn fit_three_points(exponential: bool, r: [f64; 3], v: [f64; 3]) -> Option<(f64,
 
 #[derive(Debug, Clone, PartialEq)]
 enum Tail {
-    Powers { limit: f64, powers: Vec<f64>, coefficients: Vec<f64> },
-    Exponential { limit: f64, amplitude: f64, rate: f64 },
+    Powers {
+        limit: f64,
+        powers: Vec<f64>,
+        coefficients: Vec<f64>,
+    },
+    Exponential {
+        limit: f64,
+        amplitude: f64,
+        rate: f64,
+    },
 }
 
 impl Tail {
@@ -161,10 +177,17 @@ impl Tail {
                 limit,
                 powers,
                 coefficients,
-            } => powers.iter().zip(coefficients).fold((*limit, 0.0, 0.0), |acc, (&n, &c)| {
-                let f = c * r.powf(-n);
-                (acc.0 - f, acc.1 + n * f / r, acc.2 - n * (n + 1.0) * f / (r * r))
-            }),
+            } => powers
+                .iter()
+                .zip(coefficients)
+                .fold((*limit, 0.0, 0.0), |acc, (&n, &c)| {
+                    let f = c * r.powf(-n);
+                    (
+                        acc.0 - f,
+                        acc.1 + n * f / r,
+                        acc.2 - n * (n + 1.0) * f / (r * r),
+                    )
+                }),
             Tail::Exponential {
                 limit,
                 amplitude,
@@ -187,10 +210,11 @@ fn solve_small(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Option<Vec<f64>> {
         }
         a.swap(col, pivot);
         b.swap(col, pivot);
+        let pivot_row = a[col].clone();
         for row in col + 1..n {
-            let factor = a[row][col] / a[col][col];
-            for k in col..n {
-                a[row][k] -= factor * a[col][k];
+            let factor = a[row][col] / pivot_row[col];
+            for (target, source) in a[row].iter_mut().zip(&pivot_row).skip(col) {
+                *target -= factor * source;
             }
             b[row] -= factor * b[col];
         }
@@ -203,7 +227,12 @@ fn solve_small(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Option<Vec<f64>> {
     x.iter().all(|v| v.is_finite()).then_some(x)
 }
 
-fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Result<Tail, TabulatedError> {
+fn fit_tail(
+    r: &[f64],
+    v: &[f64],
+    tail: &OuterTail,
+    limit: Option<f64>,
+) -> Result<Tail, TabulatedError> {
     let n = r.len();
     let guess_limit = limit.unwrap_or(v[n - 1]);
     let fail = |why: &str| TabulatedError::TailFit {
@@ -211,7 +240,10 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
         why: why.to_string(),
     };
     match tail {
-        OuterTail::InversePower { powers, coefficients } => {
+        OuterTail::InversePower {
+            powers,
+            coefficients,
+        } => {
             let known = coefficients.clone().unwrap_or_default();
             if known.len() > powers.len() {
                 return Err(TabulatedError::TailShape {
@@ -229,7 +261,13 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
                     found: n,
                 });
             }
-            let known_part = |x: f64| -> f64 { powers.iter().zip(&known).map(|(&p, &c)| c * x.powf(-p)).sum() };
+            let known_part = |x: f64| -> f64 {
+                powers
+                    .iter()
+                    .zip(&known)
+                    .map(|(&p, &c)| c * x.powf(-p))
+                    .sum()
+            };
             let mut solution = Vec::new();
             if unknowns > 0 {
                 // Rows: V_i + known(r_i) - L_given = -sum_free C_k r_i^-n_k (+ L when fitted).
@@ -237,14 +275,18 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
                 let matrix = rows
                     .iter()
                     .map(|&i| {
-                        let mut row: Vec<f64> = free_powers.iter().map(|&p| -r[i].powf(-p)).collect();
+                        let mut row: Vec<f64> =
+                            free_powers.iter().map(|&p| -r[i].powf(-p)).collect();
                         if limit.is_none() {
                             row.push(1.0);
                         }
                         row
                     })
                     .collect();
-                let rhs = rows.iter().map(|&i| v[i] + known_part(r[i]) - limit.unwrap_or(0.0)).collect();
+                let rhs = rows
+                    .iter()
+                    .map(|&i| v[i] + known_part(r[i]) - limit.unwrap_or(0.0))
+                    .collect();
                 solution = solve_small(matrix, rhs).ok_or_else(|| fail("the fit is singular"))?;
             }
             let mut coefficients = known;
@@ -261,7 +303,9 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
                 let (r1, r2) = (r[n - 2], r[n - 1]);
                 let (g1, g2) = (l - v[n - 2], l - v[n - 1]);
                 if g1 <= 0.0 || g2 <= 0.0 || g2 >= g1 {
-                    return Err(fail("the last two points do not approach the limit from below"));
+                    return Err(fail(
+                        "the last two points do not approach the limit from below",
+                    ));
                 }
                 let rate = (g1 / g2).ln() / (r2 - r1);
                 Ok(Tail::Exponential {
@@ -272,7 +316,10 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
             }
             None => {
                 if n < 3 {
-                    return Err(TabulatedError::TailNeedsPoints { needed: 3, found: n });
+                    return Err(TabulatedError::TailNeedsPoints {
+                        needed: 3,
+                        found: n,
+                    });
                 }
                 let (a, b, s) = fit_three_points(
                     true,
@@ -281,7 +328,9 @@ fn fit_tail(r: &[f64], v: &[f64], tail: &OuterTail, limit: Option<f64>) -> Resul
                 )
                 .ok_or_else(|| fail("the last three points do not level off exponentially"))?;
                 if b >= 0.0 {
-                    return Err(fail("the last three points do not approach a limit from below"));
+                    return Err(fail(
+                        "the last three points do not approach a limit from below",
+                    ));
                 }
                 Ok(Tail::Exponential {
                     limit: a,
@@ -342,7 +391,11 @@ impl TabulatedCurve {
             fit_three_points(exponential, [r[0], r[1], r[2]], [v[0], v[1], v[2]])
                 .filter(|&(_, b, _)| b > 0.0)
                 .ok_or(TabulatedError::WallNotRepulsive {
-                    form: if exponential { "exponential" } else { "inverse-power" },
+                    form: if exponential {
+                        "exponential"
+                    } else {
+                        "inverse-power"
+                    },
                     r0: r[0],
                     r2: r[2],
                 })?;
@@ -391,7 +444,11 @@ impl TabulatedCurve {
                 powers,
                 coefficients,
                 ..
-            } => powers.iter().copied().zip(coefficients.iter().copied()).collect(),
+            } => powers
+                .iter()
+                .copied()
+                .zip(coefficients.iter().copied())
+                .collect(),
             Tail::Exponential { .. } => Vec::new(),
         }
     }

@@ -183,7 +183,12 @@ impl Origin<'_> {
             .transpose()
     }
 
-    fn positive(&self, table: &toml::Table, key: &str, dimension: Dimension) -> Result<Option<f64>, InputError> {
+    fn positive(
+        &self,
+        table: &toml::Table,
+        key: &str,
+        dimension: Dimension,
+    ) -> Result<Option<f64>, InputError> {
         let value = self.quantity(table, key, dimension)?;
         if let Some(v) = value {
             if v <= 0.0 {
@@ -198,16 +203,27 @@ impl Origin<'_> {
             None => Ok(default),
             Some(toml::Value::Integer(i)) => Ok(*i as f64),
             Some(toml::Value::Float(x)) if x.is_finite() => Ok(*x),
-            Some(other) => Err(self.error(Some(key), format!("'{key}' must be a plain number, found {other}"))),
+            Some(other) => Err(self.error(
+                Some(key),
+                format!("'{key}' must be a plain number, found {other}"),
+            )),
         }
     }
 
-    fn check_keys(&self, table: &toml::Table, allowed: &[&str], what: &str) -> Result<(), InputError> {
+    fn check_keys(
+        &self,
+        table: &toml::Table,
+        allowed: &[&str],
+        what: &str,
+    ) -> Result<(), InputError> {
         for key in table.keys() {
             if !allowed.contains(&key.as_str()) {
                 return Err(self.error(
                     Some(key),
-                    format!("unknown key '{key}' for {what}; accepted keys: {}", allowed.join(", ")),
+                    format!(
+                        "unknown key '{key}' for {what}; accepted keys: {}",
+                        allowed.join(", ")
+                    ),
                 ));
             }
         }
@@ -218,15 +234,48 @@ impl Origin<'_> {
 /// Keys accepted in `[curve]` for each model.
 const MODEL_KEYS: &[(&str, &[&str])] = &[
     ("harmonic", &["model", "r_e", "force_constant", "omega_e"]),
-    ("morse", &["model", "r_e", "well_depth", "width", "omega_e", "omega_e_x_e"]),
+    (
+        "morse",
+        &[
+            "model",
+            "r_e",
+            "well_depth",
+            "width",
+            "omega_e",
+            "omega_e_x_e",
+        ],
+    ),
     (
         "lennard-jones",
-        &["model", "well_depth", "r_e", "sigma", "repulsive_power", "attractive_power"],
+        &[
+            "model",
+            "well_depth",
+            "r_e",
+            "sigma",
+            "repulsive_power",
+            "attractive_power",
+        ],
     ),
-    ("points", &["model", "file", "spline", "inner_wall", "limit", "outer_tail"]),
+    (
+        "points",
+        &[
+            "model",
+            "file",
+            "spline",
+            "inner_wall",
+            "limit",
+            "outer_tail",
+        ],
+    ),
 ];
 
-fn require(origin: &Origin, value: Option<f64>, key: &str, model: &str, needs: &str) -> Result<f64, InputError> {
+fn require(
+    origin: &Origin,
+    value: Option<f64>,
+    key: &str,
+    model: &str,
+    needs: &str,
+) -> Result<f64, InputError> {
     value.ok_or_else(|| origin.error(None, format!("model '{model}' needs '{key}' ({needs})")))
 }
 
@@ -247,7 +296,11 @@ fn analytic(curve: impl PotentialCurve + 'static) -> BuiltCurve {
     }
 }
 
-fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Result<BuiltCurve, InputError> {
+fn build_curve(
+    table: &toml::Table,
+    origin: &Origin,
+    reduced_mass: f64,
+) -> Result<BuiltCurve, InputError> {
     let model = origin.string(table, "model")?.ok_or_else(|| {
         origin.error(
             None,
@@ -262,7 +315,9 @@ fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Resul
         .ok_or_else(|| {
             origin.error(
                 Some("model"),
-                format!("unknown model '{model}'; choose one of harmonic, morse, lennard-jones, points"),
+                format!(
+                    "unknown model '{model}'; choose one of harmonic, morse, lennard-jones, points"
+                ),
             )
         })?;
     origin.check_keys(table, allowed, &format!("model '{model}'"))?;
@@ -270,18 +325,36 @@ fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Resul
     let length = |key| origin.positive(table, key, Dimension::Length);
     match model.as_str() {
         "harmonic" => {
-            let r_e = require(origin, length("r_e")?, "r_e", &model, "the equilibrium distance")?;
-            let k = match (origin.positive(table, "force_constant", Dimension::ForceConstant)?, energy("omega_e")?) {
+            let r_e = require(
+                origin,
+                length("r_e")?,
+                "r_e",
+                &model,
+                "the equilibrium distance",
+            )?;
+            let k = match (
+                origin.positive(table, "force_constant", Dimension::ForceConstant)?,
+                energy("omega_e")?,
+            ) {
                 (Some(k), None) => k,
                 (None, Some(omega)) => reduced_mass * omega * omega,
                 _ => {
-                    return Err(origin.error(None, "model 'harmonic' needs exactly one of 'force_constant' and 'omega_e'"))
+                    return Err(origin.error(
+                        None,
+                        "model 'harmonic' needs exactly one of 'force_constant' and 'omega_e'",
+                    ))
                 }
             };
             Ok(analytic(Harmonic::new(k, r_e)))
         }
         "morse" => {
-            let r_e = require(origin, length("r_e")?, "r_e", &model, "the equilibrium distance")?;
+            let r_e = require(
+                origin,
+                length("r_e")?,
+                "r_e",
+                &model,
+                "the equilibrium distance",
+            )?;
             let depth = energy("well_depth")?;
             let width = origin.positive(table, "width", Dimension::InverseLength)?;
             let omega = energy("omega_e")?;
@@ -300,7 +373,13 @@ fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Resul
             Ok(analytic(morse))
         }
         "lennard-jones" => {
-            let depth = require(origin, energy("well_depth")?, "well_depth", &model, "epsilon")?;
+            let depth = require(
+                origin,
+                energy("well_depth")?,
+                "well_depth",
+                &model,
+                "epsilon",
+            )?;
             let n = origin.number(table, "repulsive_power", 12.0)?;
             let m = origin.number(table, "attractive_power", 6.0)?;
             if !(n > m && m > 0.0) {
@@ -312,7 +391,12 @@ fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Resul
             let lj = match (length("r_e")?, length("sigma")?) {
                 (Some(r_e), None) => LennardJones::new(depth, r_e, n, m),
                 (None, Some(sigma)) => LennardJones::from_sigma(depth, sigma, n, m),
-                _ => return Err(origin.error(None, "model 'lennard-jones' needs exactly one of 'r_e' and 'sigma'")),
+                _ => {
+                    return Err(origin.error(
+                        None,
+                        "model 'lennard-jones' needs exactly one of 'r_e' and 'sigma'",
+                    ))
+                }
             };
             Ok(analytic(lj))
         }
@@ -320,7 +404,12 @@ fn build_curve(table: &toml::Table, origin: &Origin, reduced_mass: f64) -> Resul
     }
 }
 
-fn choice<T: Copy>(origin: &Origin, table: &toml::Table, key: &str, options: &[(&str, T)]) -> Result<Option<T>, InputError> {
+fn choice<T: Copy>(
+    origin: &Origin,
+    table: &toml::Table,
+    key: &str,
+    options: &[(&str, T)],
+) -> Result<Option<T>, InputError> {
     origin
         .string(table, key)?
         .map(|text| {
@@ -330,29 +419,49 @@ fn choice<T: Copy>(origin: &Origin, table: &toml::Table, key: &str, options: &[(
                 .map(|(_, v)| *v)
                 .ok_or_else(|| {
                     let names: Vec<_> = options.iter().map(|(n, _)| *n).collect();
-                    origin.error(Some(key), format!("'{key}' = '{text}' is not one of: {}", names.join(", ")))
+                    origin.error(
+                        Some(key),
+                        format!("'{key}' = '{text}' is not one of: {}", names.join(", ")),
+                    )
                 })
         })
         .transpose()
 }
 
 fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, InputError> {
-    let file = origin
-        .string(table, "file")?
-        .ok_or_else(|| origin.error(None, "model 'points' needs file = \"points.csv\" (r and energy columns)"))?;
+    let file = origin.string(table, "file")?.ok_or_else(|| {
+        origin.error(
+            None,
+            "model 'points' needs file = \"points.csv\" (r and energy columns)",
+        )
+    })?;
     let path = origin.base_dir.join(file);
     let text = std::fs::read_to_string(&path).map_err(|e| {
-        origin.error(Some("file"), format!("cannot read points file '{}': {e}", path.display()))
+        origin.error(
+            Some("file"),
+            format!("cannot read points file '{}': {e}", path.display()),
+        )
     })?;
     let table_name = path.display().to_string();
     let points = parse_points(&text, &table_name)?;
-    let end = choice(origin, table, "spline", &[("not-a-knot", SplineEnd::NotAKnot), ("natural", SplineEnd::Natural)])?
-        .unwrap_or_default();
+    let end = choice(
+        origin,
+        table,
+        "spline",
+        &[
+            ("not-a-knot", SplineEnd::NotAKnot),
+            ("natural", SplineEnd::Natural),
+        ],
+    )?
+    .unwrap_or_default();
     let inner = choice(
         origin,
         table,
         "inner_wall",
-        &[("exponential", InnerWall::Exponential), ("inverse-power", InnerWall::InversePower)],
+        &[
+            ("exponential", InnerWall::Exponential),
+            ("inverse-power", InnerWall::InversePower),
+        ],
     )?
     .unwrap_or_default();
     let limit = origin.quantity(table, "limit", Dimension::Energy)?;
@@ -365,7 +474,11 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
                 section: "curve.outer_tail",
                 base_dir: origin.base_dir.clone(),
             };
-            tail_origin.check_keys(tail, &["form", "powers", "coefficients_au"], "[curve.outer_tail]")?;
+            tail_origin.check_keys(
+                tail,
+                &["form", "powers", "coefficients_au"],
+                "[curve.outer_tail]",
+            )?;
             let numbers = |key: &str| -> Result<Option<Vec<f64>>, InputError> {
                 match tail.get(key) {
                     None => Ok(None),
@@ -374,18 +487,34 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
                         .map(|v| match v {
                             toml::Value::Integer(i) => Ok(*i as f64),
                             toml::Value::Float(x) if x.is_finite() => Ok(*x),
-                            other => Err(tail_origin.error(Some(key), format!("'{key}' must hold plain numbers, found {other}"))),
+                            other => Err(tail_origin.error(
+                                Some(key),
+                                format!("'{key}' must hold plain numbers, found {other}"),
+                            )),
                         })
                         .collect::<Result<Vec<_>, _>>()
                         .map(Some),
-                    Some(other) => Err(tail_origin.error(Some(key), format!("'{key}' must be a list such as [6, 8], found {other}"))),
+                    Some(other) => Err(tail_origin.error(
+                        Some(key),
+                        format!("'{key}' must be a list such as [6, 8], found {other}"),
+                    )),
                 }
             };
-            match choice(&tail_origin, tail, "form", &[("inverse-power", true), ("exponential", false)])?.unwrap_or(true) {
+            match choice(
+                &tail_origin,
+                tail,
+                "form",
+                &[("inverse-power", true), ("exponential", false)],
+            )?
+            .unwrap_or(true)
+            {
                 true => {
                     let powers = numbers("powers")?.unwrap_or_else(|| vec![6.0]);
                     if powers.is_empty() || powers.iter().any(|&p| p <= 0.0) {
-                        return Err(tail_origin.error(Some("powers"), "'powers' must list positive numbers, e.g. [6, 8]"));
+                        return Err(tail_origin.error(
+                            Some("powers"),
+                            "'powers' must list positive numbers, e.g. [6, 8]",
+                        ));
                     }
                     OuterTail::InversePower {
                         powers,
@@ -396,7 +525,10 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
             }
         }
         Some(other) => {
-            return Err(origin.error(Some("outer_tail"), format!("'outer_tail' must be a table, found {other}")))
+            return Err(origin.error(
+                Some("outer_tail"),
+                format!("'outer_tail' must be a table, found {other}"),
+            ))
         }
     };
     let curve = TabulatedCurve::new(points.points, end, inner, outer, limit)
@@ -409,9 +541,20 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
     })
 }
 
-fn parse_pair(atoms: &[String], charge: i32, origin: &Origin, key: Option<&str>) -> Result<Pair, InputError> {
+fn parse_pair(
+    atoms: &[String],
+    charge: i32,
+    origin: &Origin,
+    key: Option<&str>,
+) -> Result<Pair, InputError> {
     if atoms.len() != 2 {
-        return Err(origin.error(key, format!("a diatomic needs exactly two atoms, found {}; e.g. atoms = [\"1H\", \"35Cl\"]", atoms.len())));
+        return Err(origin.error(
+            key,
+            format!(
+                "a diatomic needs exactly two atoms, found {}; e.g. atoms = [\"1H\", \"35Cl\"]",
+                atoms.len()
+            ),
+        ));
     }
     let parse = |text: &str| Atom::parse(text).map_err(|e| origin.error(key, e.to_string()));
     Ok(Pair::new(parse(&atoms[0])?, parse(&atoms[1])?, charge))
@@ -425,7 +568,9 @@ pub struct PairOverride {
 }
 
 fn line_of_toml_error(text: &str, error: &toml::de::Error) -> Option<usize> {
-    error.span().map(|span| text[..span.start.min(text.len())].lines().count().max(1))
+    error
+        .span()
+        .map(|span| text[..span.start.min(text.len())].lines().count().max(1))
 }
 
 /// Read a curve file (TOML) from disk.
@@ -438,7 +583,12 @@ pub fn read_curve_file(path: &Path, overrides: &PairOverride) -> Result<CurveSet
 }
 
 /// Parse the text of a curve file. `name` labels messages; `base_dir` resolves points files.
-pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &PairOverride) -> Result<CurveSetup, InputError> {
+pub fn parse_curve_file(
+    text: &str,
+    name: &str,
+    base_dir: &Path,
+    overrides: &PairOverride,
+) -> Result<CurveSetup, InputError> {
     let document: toml::Table = toml::from_str(text).map_err(|e| InputError {
         source_name: name.to_string(),
         line: line_of_toml_error(text, &e),
@@ -450,7 +600,11 @@ pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &Pai
         section: "",
         base_dir: base_dir.to_path_buf(),
     };
-    top.check_keys(&document, &["title", "note", "molecule", "curve", "solver"], "the top level")?;
+    top.check_keys(
+        &document,
+        &["title", "note", "molecule", "curve", "solver"],
+        "the top level",
+    )?;
     let section = |key: &str| -> Result<Option<&toml::Table>, InputError> {
         match document.get(key) {
             None => Ok(None),
@@ -458,7 +612,10 @@ pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &Pai
             Some(_) => Err(top.error(Some(key), format!("'{key}' must be a section [{key}]"))),
         }
     };
-    let molecule_origin = Origin { section: "molecule", ..top_clone(&top) };
+    let molecule_origin = Origin {
+        section: "molecule",
+        ..top_clone(&top)
+    };
     let molecule = section("molecule")?;
     let file_atoms: Option<Vec<String>> = match molecule.and_then(|m| m.get("atoms")) {
         None => None,
@@ -467,11 +624,21 @@ pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &Pai
                 .iter()
                 .map(|v| match v {
                     toml::Value::String(s) => Ok(s.clone()),
-                    other => Err(molecule_origin.error(Some("atoms"), format!("atoms must be text such as \"35Cl\" or \"34.97 u\", found {other}"))),
+                    other => Err(molecule_origin.error(
+                        Some("atoms"),
+                        format!(
+                            "atoms must be text such as \"35Cl\" or \"34.97 u\", found {other}"
+                        ),
+                    )),
                 })
                 .collect::<Result<_, _>>()?,
         ),
-        Some(other) => return Err(molecule_origin.error(Some("atoms"), format!("atoms must be a list of two, found {other}"))),
+        Some(other) => {
+            return Err(molecule_origin.error(
+                Some("atoms"),
+                format!("atoms must be a list of two, found {other}"),
+            ))
+        }
     };
     if let Some(m) = molecule {
         molecule_origin.check_keys(m, &["atoms", "charge"], "[molecule]")?;
@@ -480,26 +647,55 @@ pub fn parse_curve_file(text: &str, name: &str, base_dir: &Path, overrides: &Pai
         None => 0,
         Some(toml::Value::Integer(q)) => i32::try_from(*q)
             .map_err(|_| molecule_origin.error(Some("charge"), "charge is out of range"))?,
-        Some(other) => return Err(molecule_origin.error(Some("charge"), format!("charge must be a whole number, found {other}"))),
+        Some(other) => {
+            return Err(molecule_origin.error(
+                Some("charge"),
+                format!("charge must be a whole number, found {other}"),
+            ))
+        }
     };
     let atoms = overrides.atoms.clone().or(file_atoms).ok_or_else(|| {
-        top.error(None, "no atoms given; add [molecule] atoms = [\"1H\", \"35Cl\"] or pass --atoms 1H 35Cl")
+        top.error(
+            None,
+            "no atoms given; add [molecule] atoms = [\"1H\", \"35Cl\"] or pass --atoms 1H 35Cl",
+        )
     })?;
-    let pair = parse_pair(&atoms, overrides.charge.unwrap_or(file_charge), &molecule_origin, overrides.atoms.is_none().then_some("atoms"))?;
-    let curve_origin = Origin { section: "curve", ..top_clone(&top) };
-    let curve_table = section("curve")?.ok_or_else(|| top.error(None, "the file has no [curve] section; add one with model = \"...\""))?;
+    let pair = parse_pair(
+        &atoms,
+        overrides.charge.unwrap_or(file_charge),
+        &molecule_origin,
+        overrides.atoms.is_none().then_some("atoms"),
+    )?;
+    let curve_origin = Origin {
+        section: "curve",
+        ..top_clone(&top)
+    };
+    let curve_table = section("curve")?.ok_or_else(|| {
+        top.error(
+            None,
+            "the file has no [curve] section; add one with model = \"...\"",
+        )
+    })?;
     let built = build_curve(curve_table, &curve_origin, pair.reduced_mass())?;
     let solver = match section("solver")? {
         None => SolverHints::default(),
         Some(t) => {
-            let o = Origin { section: "solver", ..top_clone(&top) };
+            let o = Origin {
+                section: "solver",
+                ..top_clone(&top)
+            };
             o.check_keys(t, &["tolerance", "r_min", "r_max", "step"], "[solver]")?;
             let r_min = o.positive(t, "r_min", Dimension::Length)?;
             let r_max = o.positive(t, "r_max", Dimension::Length)?;
             let r_range = match (r_min, r_max) {
                 (Some(a), Some(b)) if a < b => Some((a, b)),
                 (None, None) => None,
-                _ => return Err(o.error(Some("r_min"), "give both r_min and r_max, with r_min < r_max")),
+                _ => {
+                    return Err(o.error(
+                        Some("r_min"),
+                        "give both r_min and r_max, with r_min < r_max",
+                    ))
+                }
             };
             SolverHints {
                 tolerance: o.positive(t, "tolerance", Dimension::Energy)?,
@@ -542,7 +738,11 @@ fn top_clone<'a>(origin: &Origin<'a>) -> Origin<'a> {
 ///     &["1H".to_string(), "35Cl".to_string()], 0).unwrap();
 /// assert!(setup.curve.limit().is_some());
 /// ```
-pub fn parse_inline_model(spec: &str, atoms: &[String], charge: i32) -> Result<CurveSetup, InputError> {
+pub fn parse_inline_model(
+    spec: &str,
+    atoms: &[String],
+    charge: i32,
+) -> Result<CurveSetup, InputError> {
     let origin = Origin {
         name: "--model".to_string(),
         text: None,
@@ -551,26 +751,39 @@ pub fn parse_inline_model(spec: &str, atoms: &[String], charge: i32) -> Result<C
     };
     let (model, rest) = spec.split_once(':').unwrap_or((spec, ""));
     let mut table = toml::Table::new();
-    table.insert("model".into(), toml::Value::String(model.trim().to_string()));
+    table.insert(
+        "model".into(),
+        toml::Value::String(model.trim().to_string()),
+    );
     for item in rest.split(',').map(str::trim).filter(|s| !s.is_empty()) {
         let (key, value) = item.split_once('=').ok_or_else(|| {
             origin.error(None, format!("'{item}' is not key=value; write e.g. morse:well_depth=37000 cm-1,width=1.9 1/angstrom,r_e=1.27 angstrom"))
         })?;
         let value = value.trim();
         let parsed = if key.trim().ends_with("_power") {
-            value
-                .parse::<f64>()
-                .map(toml::Value::Float)
-                .map_err(|_| origin.error(None, format!("'{}' must be a plain number", key.trim())))?
+            value.parse::<f64>().map(toml::Value::Float).map_err(|_| {
+                origin.error(None, format!("'{}' must be a plain number", key.trim()))
+            })?
         } else {
             toml::Value::String(value.to_string())
         };
         table.insert(key.trim().to_string(), parsed);
     }
     if table.get("model").and_then(|m| m.as_str()) == Some("points") {
-        return Err(origin.error(None, "tabulated curves need a curve file; --model takes harmonic, morse or lennard-jones"));
+        return Err(origin.error(
+            None,
+            "tabulated curves need a curve file; --model takes harmonic, morse or lennard-jones",
+        ));
     }
-    let pair = parse_pair(atoms, charge, &Origin { name: "--atoms".into(), ..top_clone(&origin) }, None)?;
+    let pair = parse_pair(
+        atoms,
+        charge,
+        &Origin {
+            name: "--atoms".into(),
+            ..top_clone(&origin)
+        },
+        None,
+    )?;
     let built = build_curve(&table, &origin, pair.reduced_mass())?;
     Ok(CurveSetup {
         source: "--model".to_string(),

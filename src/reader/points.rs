@@ -78,13 +78,20 @@ pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
             return Err(InputError::at(
                 file,
                 line,
-                format!("expected 2 comma-separated numbers (r, energy), found {} cells", cells.len()),
+                format!(
+                    "expected 2 comma-separated numbers (r, energy), found {} cells",
+                    cells.len()
+                ),
             ));
         }
         let mut numbers = [0.0; 2];
         for (k, cell) in cells.iter().enumerate() {
             let value: f64 = cell.parse().map_err(|_| {
-                InputError::at(file, line, format!("'{cell}' is not a number; fix or remove the row"))
+                InputError::at(
+                    file,
+                    line,
+                    format!("'{cell}' is not a number; fix or remove the row"),
+                )
             })?;
             if !value.is_finite() {
                 return Err(InputError::at(
@@ -100,7 +107,10 @@ pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
             return Err(InputError::at(
                 file,
                 line,
-                format!("r = {} {} is not positive; internuclear distances are > 0", numbers[0], r_unit),
+                format!(
+                    "r = {} {} is not positive; internuclear distances are > 0",
+                    numbers[0], r_unit
+                ),
             ));
         }
         points.push((r, v_unit.to_atomic(numbers[1]), line));
@@ -116,7 +126,9 @@ pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
     }
     let mut warnings = Vec::new();
     if points.windows(2).any(|w| w[1].0 < w[0].0) {
-        warnings.push(format!("{file}: the points are not in increasing r; they were sorted"));
+        warnings.push(format!(
+            "{file}: the points are not in increasing r; they were sorted"
+        ));
         points.sort_by(|a, b| a.0.total_cmp(&b.0));
     }
     if let Some(w) = points.windows(2).find(|w| w[1].0 == w[0].0) {
@@ -144,7 +156,11 @@ mod tests {
 
     #[test]
     fn reads_units_from_the_header_and_sorts() {
-        let table = parse_points("# x\nr_bohr,E_hartree\n2,0.1\n1,0.5\n3,0.2\n4,0.3\n", "t.csv").unwrap();
+        let table = parse_points(
+            "# x\nr_bohr,E_hartree\n2,0.1\n1,0.5\n3,0.2\n4,0.3\n",
+            "t.csv",
+        )
+        .unwrap();
         assert_eq!(table.points[0], (1.0, 0.5));
         assert_eq!(table.warnings.len(), 1);
     }

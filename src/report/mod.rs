@@ -84,7 +84,8 @@ fn csv_cell(cell: &Cell) -> String {
 
 fn json_cell(cell: &Cell) -> serde_json::Value {
     match cell {
-        Cell::Number(x) => serde_json::Number::from_f64(*x).map_or(serde_json::Value::Null, serde_json::Value::Number),
+        Cell::Number(x) => serde_json::Number::from_f64(*x)
+            .map_or(serde_json::Value::Null, serde_json::Value::Number),
         Cell::Integer(i) => serde_json::Value::from(*i),
         Cell::Text(t) => serde_json::Value::from(t.clone()),
         Cell::Flag(b) => serde_json::Value::from(*b),
@@ -97,7 +98,9 @@ impl Table {
         match format {
             Format::Table => self.render_people(),
             Format::Csv => self.render_csv(),
-            Format::Json => serde_json::to_string_pretty(&self.to_json()).expect("JSON of plain values") + "\n",
+            Format::Json => {
+                serde_json::to_string_pretty(&self.to_json()).expect("JSON of plain values") + "\n"
+            }
         }
     }
 
@@ -105,22 +108,43 @@ impl Table {
         let texts: Vec<Vec<String>> = self
             .rows
             .iter()
-            .map(|row| row.iter().zip(&self.columns).map(|(c, col)| people_cell(c, col.decimals)).collect())
+            .map(|row| {
+                row.iter()
+                    .zip(&self.columns)
+                    .map(|(c, col)| people_cell(c, col.decimals))
+                    .collect()
+            })
             .collect();
         let widths: Vec<usize> = self
             .columns
             .iter()
             .enumerate()
-            .map(|(k, col)| texts.iter().map(|r| r[k].chars().count()).chain([col.name.len()]).max().unwrap_or(0))
+            .map(|(k, col)| {
+                texts
+                    .iter()
+                    .map(|r| r[k].chars().count())
+                    .chain([col.name.len()])
+                    .max()
+                    .unwrap_or(0)
+            })
             .collect();
         let mut out = String::new();
         if !self.title.is_empty() {
             let _ = writeln!(out, "{}", self.title);
         }
-        let header: Vec<String> = self.columns.iter().zip(&widths).map(|(c, w)| format!("{:>w$}", c.name)).collect();
+        let header: Vec<String> = self
+            .columns
+            .iter()
+            .zip(&widths)
+            .map(|(c, w)| format!("{:>w$}", c.name))
+            .collect();
         let _ = writeln!(out, "{}", header.join("  "));
         for row in &texts {
-            let line: Vec<String> = row.iter().zip(&widths).map(|(t, w)| format!("{t:>w$}")).collect();
+            let line: Vec<String> = row
+                .iter()
+                .zip(&widths)
+                .map(|(t, w)| format!("{t:>w$}"))
+                .collect();
             let _ = writeln!(out, "{}", line.join("  "));
         }
         for note in &self.notes {
@@ -143,7 +167,13 @@ impl Table {
             .rows
             .iter()
             .map(|row| {
-                serde_json::Value::Object(self.columns.iter().zip(row).map(|(c, v)| (c.name.clone(), json_cell(v))).collect())
+                serde_json::Value::Object(
+                    self.columns
+                        .iter()
+                        .zip(row)
+                        .map(|(c, v)| (c.name.clone(), json_cell(v)))
+                        .collect(),
+                )
             })
             .collect();
         serde_json::json!({
@@ -173,7 +203,10 @@ mod tests {
         let table = sample();
         assert!(table.render(Format::Csv).contains("2170.272500000123"));
         let json: serde_json::Value = serde_json::from_str(&table.render(Format::Json)).unwrap();
-        assert_eq!(json["rows"][0]["energy_cm-1"].as_f64(), Some(2170.272500000123));
+        assert_eq!(
+            json["rows"][0]["energy_cm-1"].as_f64(),
+            Some(2170.272500000123)
+        );
         assert!(table.render(Format::Table).contains("2170.2725"));
     }
 }

@@ -44,48 +44,107 @@ fn physics_notes(pair: &Pair) -> Vec<String> {
 pub fn survey_table(survey: &Survey, setup: &CurveSetup, units: DisplayUnits) -> Table {
     let (eu, lu) = (units.energy.name, units.length.name);
     let mut rows: Vec<(String, Cell, String)> = vec![
-        ("reduced_mass".into(), Cell::Number(to_dalton(survey.reduced_mass)), "u".into()),
+        (
+            "reduced_mass".into(),
+            Cell::Number(to_dalton(survey.reduced_mass)),
+            "u".into(),
+        ),
         ("r_e".into(), units.l(survey.well.r_min), lu.into()),
         ("V_at_r_e".into(), units.e(survey.well.v_min), eu.into()),
-        ("asymptote".into(), survey.limit.map_or(Cell::Missing, |l| units.e(l)), eu.into()),
-        ("D_e".into(), survey.well_depth.map_or(Cell::Missing, |d| units.e(d)), eu.into()),
+        (
+            "asymptote".into(),
+            survey.limit.map_or(Cell::Missing, |l| units.e(l)),
+            eu.into(),
+        ),
+        (
+            "D_e".into(),
+            survey.well_depth.map_or(Cell::Missing, |d| units.e(d)),
+            eu.into(),
+        ),
         (
             "force_constant".into(),
-            Cell::Number(crate::units::parse_unit("N/m", crate::units::Dimension::ForceConstant).expect("N/m is a unit").from_atomic(survey.well.force_constant)),
+            Cell::Number(
+                crate::units::parse_unit("N/m", crate::units::Dimension::ForceConstant)
+                    .expect("N/m is a unit")
+                    .from_atomic(survey.well.force_constant),
+            ),
             "N/m".into(),
         ),
         ("omega_e".into(), units.e(survey.omega_e), eu.into()),
         ("B_e".into(), units.e(survey.rotational_constant), eu.into()),
-        ("harmonic_zero_point".into(), units.e(survey.harmonic_zero_point), eu.into()),
-        ("wkb_v_at_limit".into(), survey.wkb_index_at_limit.map_or(Cell::Missing, Cell::Number), "".into()),
+        (
+            "harmonic_zero_point".into(),
+            units.e(survey.harmonic_zero_point),
+            eu.into(),
+        ),
+        (
+            "wkb_v_at_limit".into(),
+            survey
+                .wkb_index_at_limit
+                .map_or(Cell::Missing, Cell::Number),
+            "".into(),
+        ),
         (
             "wkb_bound_levels".into(),
-            survey.wkb_level_count.map_or(Cell::Missing, |n| Cell::Integer(n.into())),
+            survey
+                .wkb_level_count
+                .map_or(Cell::Missing, |n| Cell::Integer(n.into())),
             "".into(),
         ),
     ];
     if let Some((energy, inner, outer)) = survey.turning_points {
-        rows.push(("turning_energy_above_minimum".into(), units.e(energy), eu.into()));
+        rows.push((
+            "turning_energy_above_minimum".into(),
+            units.e(energy),
+            eu.into(),
+        ));
         rows.push(("turning_point_inner".into(), units.opt_l(inner), lu.into()));
         rows.push(("turning_point_outer".into(), units.opt_l(outer), lu.into()));
     }
     if let Some(join) = setup.join {
         rows.push(("join_inner_r".into(), units.l(join.inner_r), lu.into()));
-        rows.push(("join_inner_value_mismatch".into(), units.e(join.inner_value_mismatch), eu.into()));
-        rows.push(("join_inner_slope_mismatch".into(), units.e(units.length.to_atomic(join.inner_slope_mismatch)), format!("{eu}/{lu}")));
+        rows.push((
+            "join_inner_value_mismatch".into(),
+            units.e(join.inner_value_mismatch),
+            eu.into(),
+        ));
+        rows.push((
+            "join_inner_slope_mismatch".into(),
+            units.e(units.length.to_atomic(join.inner_slope_mismatch)),
+            format!("{eu}/{lu}"),
+        ));
         rows.push(("join_outer_r".into(), units.l(join.outer_r), lu.into()));
-        rows.push(("join_outer_value_mismatch".into(), units.e(join.outer_value_mismatch), eu.into()));
-        rows.push(("join_outer_slope_mismatch".into(), units.e(units.length.to_atomic(join.outer_slope_mismatch)), format!("{eu}/{lu}")));
+        rows.push((
+            "join_outer_value_mismatch".into(),
+            units.e(join.outer_value_mismatch),
+            eu.into(),
+        ));
+        rows.push((
+            "join_outer_slope_mismatch".into(),
+            units.e(units.length.to_atomic(join.outer_slope_mismatch)),
+            format!("{eu}/{lu}"),
+        ));
     }
     for (n, c) in &setup.tail_coefficients {
-        rows.push((format!("tail_C{n}"), Cell::Number(*c), format!("hartree bohr^{n}")));
+        rows.push((
+            format!("tail_C{n}"),
+            Cell::Number(*c),
+            format!("hartree bohr^{n}"),
+        ));
     }
     let mut notes = physics_notes(&setup.pair);
     notes.extend(setup.warnings.iter().cloned());
     Table {
         title: format!("{} | {}", setup.pair.label(), setup.curve.describe()),
-        columns: vec![Column::new("quantity", 0), Column::new("value", 6), Column::new("unit", 0)],
-        rows: rows.into_iter().map(|(q, v, u)| vec![Cell::Text(q), v, Cell::Text(u)]).collect(),
+        columns: vec![
+            Column::new("quantity", 0),
+            Column::new("value", 6),
+            Column::new("unit", 0),
+        ],
+        rows: rows
+            .into_iter()
+            .map(|(q, v, u)| vec![Cell::Text(q), v, Cell::Text(u)])
+            .collect(),
         notes,
     }
 }
@@ -121,7 +180,8 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
                 units.e(level.energy),
                 units.e(level.energy - set.curve_minimum),
                 units.e(level.energy - ground),
-                set.limit.map_or(Cell::Missing, |l| units.e(l - level.energy)),
+                set.limit
+                    .map_or(Cell::Missing, |l| units.e(l - level.energy)),
                 spacing.map_or(Cell::Missing, |s| units.e(s)),
                 units.l(level.inner_turning_point),
                 units.l(level.outer_turning_point),
@@ -137,7 +197,8 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
             Method::Numerov => "Numerov (Sturm count, Cooley, Richardson)",
             Method::SincDvr => "sinc-DVR reference",
         };
-        let mut count_note = format!(
+        let mut count_note =
+            format!(
             "J = {}: {} bound levels below the {} (method: {method}; counting box to {:.2} {lu}",
             set.j,
             audit.bound_levels,
@@ -196,9 +257,13 @@ pub fn wavefunction_table(set: &LevelSet, units: DisplayUnits) -> Table {
         .wavefunctions
         .iter()
         .flat_map(|w| {
-            w.r.iter()
-                .zip(&w.psi)
-                .map(move |(&r, &psi)| vec![Cell::Integer(w.v.into()), units.l(r), Cell::Number(psi * scale)])
+            w.r.iter().zip(&w.psi).map(move |(&r, &psi)| {
+                vec![
+                    Cell::Integer(w.v.into()),
+                    units.l(r),
+                    Cell::Number(psi * scale),
+                ]
+            })
         })
         .collect();
     Table {

@@ -11,8 +11,8 @@
 //! is reported. Cost O(N^3): a reference for tests and checks, not for production.
 
 use super::{
-    expectations, grid::UniformGrid, turning, CountAudit, Level, LevelSet, Method, RadialProblem, SolverError,
-    SolverSettings, Wavefunction, WellFacts,
+    expectations, grid::UniformGrid, turning, CountAudit, Level, LevelSet, Method, RadialProblem,
+    SolverError, SolverSettings, Wavefunction, WellFacts,
 };
 use faer::{Mat, Side};
 
@@ -69,7 +69,8 @@ pub(super) fn solve_dvr(
     facts: &WellFacts,
 ) -> Result<LevelSet, SolverError> {
     let cap = settings.outer_cap;
-    let auto_step = super::grid::step_for(problem, facts.top, facts.floor, DVR_POINTS_PER_WAVELENGTH);
+    let auto_step =
+        super::grid::step_for(problem, facts.top, facts.floor, DVR_POINTS_PER_WAVELENGTH);
     let step = settings.step.unwrap_or(auto_step);
     let (lo, hi) = match settings.r_range {
         Some(range) => range,
@@ -105,7 +106,11 @@ pub(super) fn solve_dvr(
             .chain(std::iter::once(0.0))
             .collect();
         let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
-        if psi.iter().find(|p| p.abs() > 1e-3 * peak).is_some_and(|p| *p < 0.0) {
+        if psi
+            .iter()
+            .find(|p| p.abs() > 1e-3 * peak)
+            .is_some_and(|p| *p < 0.0)
+        {
             psi.iter_mut().for_each(|p| *p = -*p);
         }
         let (mean_r, mean_inverse_r2) = expectations(&grid, &psi);

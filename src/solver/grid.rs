@@ -44,7 +44,13 @@ impl UniformGrid {
 
 /// Where the grid starts: inward from the inner turning point of `energy` until the decay
 /// integral reaches the target, the Numerov factor limit is met, or r reaches `floor`.
-pub fn inner_bound(problem: &RadialProblem, energy: f64, inner_turning: f64, step: f64, v_floor: f64) -> f64 {
+pub fn inner_bound(
+    problem: &RadialProblem,
+    energy: f64,
+    inner_turning: f64,
+    step: f64,
+    v_floor: f64,
+) -> f64 {
     let mu = problem.reduced_mass;
     let floor = 1e-3 * inner_turning;
     let mut r = inner_turning;
@@ -79,7 +85,11 @@ pub fn outer_bound(problem: &RadialProblem, energy: f64, outer_turning: f64, cap
         let kappa = (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
         // Steps of a tenth of the decay length, at least 0.01 bohr, at most 5% of r.
         let longest = 0.05 * r.max(1.0);
-        let dr = if kappa > 0.0 { (0.1 / kappa).clamp(0.01f64.min(longest), longest) } else { longest };
+        let dr = if kappa > 0.0 {
+            (0.1 / kappa).clamp(0.01f64.min(longest), longest)
+        } else {
+            longest
+        };
         decay += kappa * dr;
         r += dr;
     }
@@ -87,7 +97,12 @@ pub fn outer_bound(problem: &RadialProblem, energy: f64, outer_turning: f64, cap
 }
 
 /// Grid step giving `points_per_wavelength` at the largest local momentum below `energy`.
-pub fn step_for(problem: &RadialProblem, energy: f64, v_floor: f64, points_per_wavelength: f64) -> f64 {
+pub fn step_for(
+    problem: &RadialProblem,
+    energy: f64,
+    v_floor: f64,
+    points_per_wavelength: f64,
+) -> f64 {
     let k_max = (2.0 * problem.reduced_mass * (energy - v_floor)).sqrt();
     2.0 * std::f64::consts::PI / (k_max * points_per_wavelength)
 }

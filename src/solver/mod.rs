@@ -209,7 +209,9 @@ pub enum SolverError {
     StepTooCoarse { step: f64, suggested: f64 },
     #[error("the grid step {step:.4e} bohr gives fewer than 4 points per wavelength at the bottom of the well; use a step below {suggested:.4e} bohr")]
     UnderResolved { step: f64, suggested: f64 },
-    #[error("the grid range {lo:.4} .. {hi:.4} bohr does not contain the well at r = {r_e:.4} bohr")]
+    #[error(
+        "the grid range {lo:.4} .. {hi:.4} bohr does not contain the well at r = {r_e:.4} bohr"
+    )]
     RangeMissesWell { lo: f64, hi: f64, r_e: f64 },
     #[error("the reference sinc-DVR would need a {points} x {points} matrix (more than {limit}); use the Numerov method or give a smaller r range")]
     DvrTooLarge { points: usize, limit: usize },
@@ -234,12 +236,19 @@ struct WellFacts {
     curve_minimum: f64,
 }
 
-fn well_facts(problem: &RadialProblem, settings: &SolverSettings) -> Result<WellFacts, SolverError> {
+fn well_facts(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+) -> Result<WellFacts, SolverError> {
     let strength = problem.centrifugal_strength();
     let bare = crate::curve::find_well(problem.curve)?;
     let effective = find_well_with(problem.curve, &|r| {
         let r2 = r * r;
-        (strength / r2, -2.0 * strength / (r2 * r), 6.0 * strength / (r2 * r2))
+        (
+            strength / r2,
+            -2.0 * strength / (r2 * r),
+            6.0 * strength / (r2 * r2),
+        )
     })
     .map_err(|e| match e {
         ShapeError::NoWell { .. } | ShapeError::LimitBelowMinimum { .. } if problem.j > 0 => {
@@ -299,7 +308,13 @@ struct Counting {
 }
 
 fn turning(problem: &RadialProblem, facts: &WellFacts, energy: f64, cap: f64) -> (f64, f64) {
-    let (inner, outer) = turning_points_with(&|r| problem.effective(r), facts.r_floor, energy, 1e-6 * facts.r_floor, cap);
+    let (inner, outer) = turning_points_with(
+        &|r| problem.effective(r),
+        facts.r_floor,
+        energy,
+        1e-6 * facts.r_floor,
+        cap,
+    );
     (inner.unwrap_or(1e-6 * facts.r_floor), outer.unwrap_or(cap))
 }
 
@@ -312,9 +327,15 @@ fn grid_over(start: f64, end: f64, step: f64) -> UniformGrid {
     }
 }
 
-fn check_grid(problem: &RadialProblem, facts: &WellFacts, grid: &UniformGrid) -> Result<NumerovGrid, SolverError> {
+fn check_grid(
+    problem: &RadialProblem,
+    facts: &WellFacts,
+    grid: &UniformGrid,
+) -> Result<NumerovGrid, SolverError> {
     let floor = facts.curve_minimum;
-    let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &|r| problem.effective(r) - floor);
+    let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
+        problem.effective(r) - floor
+    });
     if let Some(i) = (0..=grid.intervals).find(|&i| !problem.effective(grid.r(i)).is_finite()) {
         return Err(SolverError::NotFinite { r: grid.r(i) });
     }
@@ -328,9 +349,18 @@ fn check_grid(problem: &RadialProblem, facts: &WellFacts, grid: &UniformGrid) ->
     Ok(numerov)
 }
 
-fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &WellFacts) -> Result<Counting, SolverError> {
+fn counting_box(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+    facts: &WellFacts,
+) -> Result<Counting, SolverError> {
     let depth = facts.top - facts.floor;
-    let auto_step = grid::step_for(problem, facts.top, facts.floor, NUMEROV_POINTS_PER_WAVELENGTH);
+    let auto_step = grid::step_for(
+        problem,
+        facts.top,
+        facts.floor,
+        NUMEROV_POINTS_PER_WAVELENGTH,
+    );
     let step = settings.step.unwrap_or(auto_step);
     if step > 5.0 * auto_step {
         return Err(SolverError::UnderResolved {
@@ -342,7 +372,11 @@ fn counting_box(problem: &RadialProblem, settings: &SolverSettings, facts: &Well
     let (inner_turning, _) = turning(problem, facts, facts.top, cap);
     if let Some((lo, hi)) = settings.r_range {
         if !(lo < facts.r_floor && facts.r_floor < hi) {
-            return Err(SolverError::RangeMissesWell { lo, hi, r_e: facts.r_floor });
+            return Err(SolverError::RangeMissesWell {
+                lo,
+                hi,
+                r_e: facts.r_floor,
+            });
         }
         let coarse = grid_over(lo, hi, step);
         let numerov = check_grid(problem, facts, &coarse)?;
@@ -435,7 +469,11 @@ struct Solved {
     grid: UniformGrid,
 }
 
-fn solve_numerov(problem: &RadialProblem, settings: &SolverSettings, facts: &WellFacts) -> Result<LevelSet, SolverError> {
+fn solve_numerov(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+    facts: &WellFacts,
+) -> Result<LevelSet, SolverError> {
     let counting = counting_box(problem, settings, facts)?;
     let floor = facts.curve_minimum;
     let coarse = check_grid(problem, facts, &counting.coarse)?;
@@ -451,7 +489,15 @@ fn solve_numerov(problem: &RadialProblem, settings: &SolverSettings, facts: &Wel
     let solved: Vec<Result<Solved, SolverError>> = (0..count)
         .into_par_iter()
         .map(|v| {
-            solve_one(problem, settings, facts, &counting, v, brackets[v], fixed_range)
+            solve_one(
+                problem,
+                settings,
+                facts,
+                &counting,
+                v,
+                brackets[v],
+                fixed_range,
+            )
         })
         .collect();
     let mut levels = Vec::with_capacity(count);

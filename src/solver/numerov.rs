@@ -50,7 +50,11 @@ pub struct GridLevel {
 
 impl NumerovGrid {
     /// Tabulate 2 mu V_eff on the grid. `potential` gives V_eff (relative to the well floor).
-    pub fn new(grid: UniformGrid, reduced_mass: f64, potential: &dyn Fn(f64) -> f64) -> NumerovGrid {
+    pub fn new(
+        grid: UniformGrid,
+        reduced_mass: f64,
+        potential: &dyn Fn(f64) -> f64,
+    ) -> NumerovGrid {
         let twice_mu_v = (0..=grid.intervals)
             .map(|i| 2.0 * reduced_mass * potential(grid.r(i)))
             .collect();
@@ -130,7 +134,11 @@ impl NumerovGrid {
                 inward[i - 1..].iter_mut().for_each(|v| *v /= HUGE);
             }
         }
-        let scale = if inward[m] != 0.0 { outward_at_m / inward[m] } else { 1.0 };
+        let scale = if inward[m] != 0.0 {
+            outward_at_m / inward[m]
+        } else {
+            1.0
+        };
         for i in m + 1..n {
             y[i] = inward[i] * scale;
         }
@@ -147,7 +155,14 @@ impl NumerovGrid {
     /// confirms it is level v; otherwise, and without a start, the bracket (lo, hi) is widened
     /// until it holds level v, narrowed by bisection until it holds only level v, and Cooley
     /// steps are kept inside it.
-    pub fn solve_level(&self, v: usize, lo: f64, hi: f64, start: Option<f64>, tolerance: f64) -> Option<GridLevel> {
+    pub fn solve_level(
+        &self,
+        v: usize,
+        lo: f64,
+        hi: f64,
+        start: Option<f64>,
+        tolerance: f64,
+    ) -> Option<GridLevel> {
         if let Some(level) = start.and_then(|e| self.polish(v, e, tolerance)) {
             return Some(level);
         }
@@ -168,7 +183,8 @@ impl NumerovGrid {
             energy += correction;
             if correction.abs() < Self::threshold(tolerance, energy) {
                 let margin = (1e3 * correction.abs()).max(1e-11 * (1.0 + energy.abs()));
-                let confirmed = self.count_below(energy - margin) == v && self.count_below(energy + margin) == v + 1;
+                let confirmed = self.count_below(energy - margin) == v
+                    && self.count_below(energy + margin) == v + 1;
                 return confirmed.then(|| GridLevel {
                     energy,
                     psi: normalise(psi, self.grid.step),
@@ -179,7 +195,13 @@ impl NumerovGrid {
         None
     }
 
-    fn solve_bracketed(&self, v: usize, mut lo: f64, mut hi: f64, tolerance: f64) -> Option<GridLevel> {
+    fn solve_bracketed(
+        &self,
+        v: usize,
+        mut lo: f64,
+        mut hi: f64,
+        tolerance: f64,
+    ) -> Option<GridLevel> {
         let mut width = (hi - lo).max(1e-12);
         let mut below_lo = self.count_below(lo);
         for _ in 0..60 {
@@ -224,13 +246,17 @@ impl NumerovGrid {
             let converged = correction.abs() < threshold || hi - lo < threshold;
             if converged || iterations > 100 {
                 return Some(GridLevel {
-                    energy: if converged { energy + correction } else { energy },
+                    energy: if converged {
+                        energy + correction
+                    } else {
+                        energy
+                    },
                     psi: normalise(psi, self.grid.step),
                     iterations,
                 });
             }
             let mut next = energy + correction;
-            if !(next > lo && next < hi) || !next.is_finite() {
+            if !(next > lo && next < hi && next.is_finite()) {
                 next = 0.5 * (lo + hi);
             }
             if self.count_below(next) <= v {

@@ -1,0 +1,50 @@
+#!/usr/bin/env python3
+"""Peer timing, run by hand (needs numpy and scipy): the Colbert-Miller sinc-DVR with
+scipy.linalg.eigh(subset_by_value) on the P1 and P2 Morse cases of benches/levels.rs, in atomic
+units, at a grid fine enough for the stated accuracy against Morse's exact levels.
+Usage: python3 benches/peer_dvr.py
+"""
+import time
+import numpy as np
+from scipy.linalg import eigh
+
+HARTREE_CM = 219474.6313632          # CODATA 2018
+BOHR_A = 0.529177210903              # CODATA 2018
+ME_PER_U = 1822.888486209            # CODATA 2018 (1/m_e in u)
+
+def morse(we, wexe, re_a, mu_u):
+    we, wexe, mu = we / HARTREE_CM, wexe / HARTREE_CM, mu_u * ME_PER_U
+    de = we * we / (4 * wexe)
+    a = we * np.sqrt(mu / (2 * de))
+    return de, a, re_a / BOHR_A, mu
+
+def dvr_levels(de, a, re, mu, lo, hi, n):
+    r = np.linspace(lo, hi, n)
+    h = r[1] - r[0]
+    i = np.arange(n)
+    d = i[:, None] - i[None, :]
+    with np.errstate(divide="ignore"):
+        t = np.where(d == 0, np.pi ** 2 / 3, 2.0 / d.astype(float) ** 2) * (-1.0) ** d
+    hmat = t / (2 * mu * h * h) + np.diag(de * (1 - np.exp(-a * (r - re))) ** 2)
+    return eigh(hmat, eigvals_only=True, subset_by_value=(-np.inf, de))
+
+def case(name, we, wexe, re_a, mu_u, lo, hi, tol_cm):
+    de, a, re, mu = morse(we, wexe, re_a, mu_u)
+    lam = np.sqrt(2 * mu * de) / a
+    nlev = int(np.floor(lam - 0.5)) + 1
+    v = np.arange(nlev) + 0.5
+    exact = (we * v - wexe * v * v)
+    for n in range(200, 20001, 100):
+        e = dvr_levels(de, a, re, mu, lo, hi, n) * HARTREE_CM
+        if len(e) >= nlev and np.max(np.abs(e[:nlev] - exact)) < tol_cm:
+            break
+    times = []
+    for _ in range(5):
+        t0 = time.perf_counter(); dvr_levels(de, a, re, mu, lo, hi, n); times.append(time.perf_counter() - t0)
+    print(f"{name}: N={n}, median {1e3 * np.median(times):.1f} ms, max error {np.max(np.abs(e[:nlev] - exact)):.2e} cm-1")
+
+if __name__ == "__main__":
+    mu_h2 = 1.007825031898 / 2
+    case("P1 light Morse (H2-like)", 4401.213, 121.336, 0.74144, mu_h2, 0.2, 12.0, 1e-6)
+    mu_i2 = 126.904472592 / 2
+    case("P2 heavy Morse (I2-like)", 214.502, 0.6147, 2.6663, mu_i2, 3.6, 14.0, 1e-5)
