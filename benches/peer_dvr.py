@@ -41,7 +41,7 @@ def case(name, we, wexe, re_a, mu_u, lo, hi, tol_cm):
     times = []
     for _ in range(5):
         t0 = time.perf_counter(); dvr_levels(de, a, re, mu, lo, hi, n); times.append(time.perf_counter() - t0)
-    print(f"{name}: N={n}, median {1e3 * np.median(times):.1f} ms, max error {np.max(np.abs(e[:nlev] - exact)):.2e} cm-1")
+    print(f"{name}: N={n}, median {1e3 * np.median(times):.1f} ms, max error {np.max(np.abs(e[:nlev] - exact)):.2e} cm-1", flush=True)
 
 if __name__ == "__main__":
     mu_h2 = 1.007825031898 / 2
