@@ -11,6 +11,19 @@ fn mu_of(a: &str, b: &str) -> f64 {
     Pair::new(Atom::parse(a).unwrap(), Atom::parse(b).unwrap(), 0).reduced_mass()
 }
 
+/// HCl Morse from the Huber-Herzberg constants (tests/data/diatomic_constants.csv, row S2):
+/// omega_e = 2990.9463, omega_e x_e = 52.8186 cm-1, r_e = 1.27455 angstrom.
+fn hcl_morse() -> (Morse, f64) {
+    let mu = mu_of("1H", "35Cl");
+    let morse = Morse::from_spectroscopic(
+        from_wavenumber(2990.9463),
+        from_wavenumber(52.8186),
+        from_angstrom(1.27455),
+        mu,
+    );
+    (morse, mu)
+}
+
 fn levels(curve: &dyn PotentialCurve, mu: f64, j: u32, settings: &SolverSettings) -> LevelSet {
     solve(&RadialProblem::new(curve, mu, j), settings).unwrap()
 }
@@ -113,13 +126,7 @@ fn rotational_constants_follow_pekeris() {
     // alpha_e = 6 sqrt(omega_e x_e B_e^3)/omega_e - 6 B_e^2/omega_e, B_v = B_e - alpha_e (v + 1/2)
     // to first order. HCl constants (Huber-Herzberg). The next term, gamma_e (v+1/2)^2, is of
     // order alpha_e^2 / B_e (Dunham's expansion; recalled from memory), which bounds the check.
-    let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
-        mu,
-    );
+    let (morse, mu) = hcl_morse();
     let set = levels(
         &morse,
         mu,
@@ -148,13 +155,7 @@ fn rotational_constants_follow_pekeris() {
 fn rotational_constant_is_the_energy_slope_in_j() {
     // Hellmann-Feynman: dE/d[J(J+1)] = <1/(2 mu r^2)> = B_v; a centred difference of E(J)
     // over J(J+1) (J = 1, 2) checks B_v to the size of the centrifugal distortion, 2 D_v (v=0).
-    let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
-        mu,
-    );
+    let (morse, mu) = hcl_morse();
     let settings = SolverSettings::default().with_highest_v(Some(0));
     let e: Vec<f64> = (0..3)
         .map(|j| levels(&morse, mu, j, &settings).levels[0].energy)
@@ -225,13 +226,7 @@ fn assert_methods_agree(curve: &dyn PotentialCurve, mu: f64) {
 
 #[test]
 fn methods_agree_on_test_curves() {
-    let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
-        mu,
-    );
+    let (morse, mu) = hcl_morse();
     assert_methods_agree(&morse, mu);
     // A Lennard-Jones 12-6 well (invented parameters: epsilon 500 cm-1, r_e 3.5 angstrom) with Ar-Ar masses.
     let lj = LennardJones::new(from_wavenumber(500.0), from_angstrom(3.5), 12.0, 6.0);
@@ -246,13 +241,7 @@ fn methods_agree_on_test_curves() {
 
 #[test]
 fn solver_refuses_bad_problems() {
-    let mu = mu_of("1H", "35Cl");
-    let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
-        mu,
-    );
+    let (morse, mu) = hcl_morse();
     // A J with no bound level.
     let err = solve(
         &RadialProblem::new(&morse, mu, 400),
