@@ -5,32 +5,17 @@
 //! The peer script benches/peer_dvr.py times scipy's sinc-DVR on the same cases.
 
 use criterion::{criterion_group, criterion_main, Criterion};
-use rungs::curve::Morse;
-use rungs::masses::{Atom, Pair};
 use rungs::reader::{read_curve_file, PairOverride};
 use rungs::solver::{solve, solve_manifold, RadialProblem, SolverSettings};
-use rungs::units::{from_angstrom, from_wavenumber};
+use rungs::units::from_wavenumber;
 use std::path::Path;
 
-fn mu_of(a: &str, b: &str) -> f64 {
-    Pair::new(Atom::parse(a).unwrap(), Atom::parse(b).unwrap(), 0).reduced_mass()
-}
+#[path = "../tests/common/mod.rs"]
+mod common;
 
 fn bench_levels(c: &mut Criterion) {
-    let light_mu = mu_of("1H", "1H");
-    let light = Morse::from_spectroscopic(
-        from_wavenumber(4401.213),
-        from_wavenumber(121.336),
-        from_angstrom(0.74144),
-        light_mu,
-    );
-    let heavy_mu = mu_of("127I", "127I");
-    let heavy = Morse::from_spectroscopic(
-        from_wavenumber(214.502),
-        from_wavenumber(0.6147),
-        from_angstrom(2.6663),
-        heavy_mu,
-    );
+    let (light, light_mu) = common::h2_morse();
+    let (heavy, heavy_mu) = common::i2_morse();
     let h2 = read_curve_file(
         Path::new("curves/h2_born_oppenheimer.toml"),
         &PairOverride::default(),

@@ -1,20 +1,20 @@
-//! Library use: the bound levels of a Morse curve built from handbook constants, compared with
-//! Morse's exact formula. Run: cargo run --release --example morse_levels
-//! (HCl constants from Huber & Herzberg (1979): omega_e = 2990.9463 cm-1,
-//! omega_e x_e = 52.8186 cm-1, r_e = 1.27455 angstrom.)
+//! Library use: the bound levels of a Morse curve built from spectroscopic constants, compared
+//! with Morse's exact formula. Run: cargo run --release --example morse_levels
+//! INVENTED scenario: the constants (omega_e = 900 cm-1, omega_e x_e = 8.5 cm-1,
+//! r_e = 1.56 angstrom, for the pair 7Li-19F) are made up, as in curves/demo_morse.toml.
 
 use rungs::curve::Morse;
-use rungs::masses::{Atom, Pair};
+use rungs::masses::Pair;
 use rungs::solver::{solve, RadialProblem, SolverSettings};
 use rungs::units::{from_angstrom, from_wavenumber, to_wavenumber};
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
-    let pair = Pair::new(Atom::parse("1H")?, Atom::parse("35Cl")?, 0);
+    let pair = Pair::neutral("7Li", "19F")?;
     let mu = pair.reduced_mass();
     let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
+        from_wavenumber(900.0),
+        from_wavenumber(8.5),
+        from_angstrom(1.56),
         mu,
     );
     let set = solve(

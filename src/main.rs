@@ -32,7 +32,7 @@ struct Cli {
 enum Command {
     /// The well, harmonic constants, a WKB level count and turning points of a curve.
     #[command(
-        after_help = "Examples:\n  rungs inspect curves/demo_morse.toml\n  rungs inspect --model 'morse:omega_e=2990.946 cm-1,omega_e_x_e=52.8186 cm-1,r_e=1.27455 angstrom' --atoms 1H 35Cl --at '5000 cm-1'\n  rungs inspect curves/h2_born_oppenheimer.toml --format json"
+        after_help = "Examples:\n  rungs inspect curves/demo_morse.toml\n  rungs inspect --model 'morse:omega_e=1500 cm-1,omega_e_x_e=20 cm-1,r_e=1.3 angstrom' --atoms 1H 35Cl --at '5000 cm-1'\n  rungs inspect curves/h2_born_oppenheimer.toml --format json"
     )]
     Inspect(InspectArgs),
     /// Every bound vibrational level (any J) with its diagnostics, and wavefunctions on request.

@@ -189,6 +189,16 @@ impl Pair {
         }
     }
 
+    /// A neutral pair from two atom texts (nuclide labels or masses with units).
+    ///
+    /// ```
+    /// let pair = rungs::masses::Pair::neutral("1H", "35Cl").unwrap();
+    /// assert_eq!(pair.label(), "1H-35Cl");
+    /// ```
+    pub fn neutral(first: &str, second: &str) -> Result<Pair, MassError> {
+        Ok(Pair::new(Atom::parse(first)?, Atom::parse(second)?, 0))
+    }
+
     /// Reduced mass for nuclear motion, electron masses.
     ///
     /// Neutral: mu = M_a M_b / (M_a + M_b) with neutral-atom masses, which is the usual

@@ -2,11 +2,13 @@
 //! analytic curves, and the H2 Born-Oppenheimer points.
 
 use rungs::curve::{InnerWall, Morse, OuterTail, PotentialCurve, SplineEnd, TabulatedCurve};
-use rungs::masses::{nuclide, Atom, Pair};
+use rungs::masses::{nuclide, Pair};
 use rungs::reader::{parse_inline_model, read_curve_file, PairOverride};
 use rungs::survey::survey;
 use rungs::units::*;
 use std::path::Path;
+
+mod common;
 
 #[test]
 fn codata_2018_values() {
@@ -58,10 +60,10 @@ fn ame2020_masses_of_the_selection() {
 #[test]
 fn reduced_mass_of_hcl() {
     // 1H35Cl from AME2020 masses: 0.979593 u (issue 2, computed from AME2020).
-    let pair = Pair::new(Atom::parse("1H").unwrap(), Atom::parse("35Cl").unwrap(), 0);
+    let pair = Pair::neutral("1H", "35Cl").unwrap();
     assert!((to_dalton(pair.reduced_mass()) - 0.979593).abs() < 5e-7);
     assert!(!pair.is_homonuclear());
-    assert!(Pair::new(Atom::parse("1H").unwrap(), Atom::parse("1H").unwrap(), 0).is_homonuclear());
+    assert!(Pair::neutral("1H", "1H").unwrap().is_homonuclear());
 }
 
 #[test]
@@ -76,12 +78,7 @@ fn hcl_morse_from_huber_herzberg() {
     .unwrap();
     let s = survey(setup.curve.as_ref(), &setup.pair, None).unwrap();
     assert!((to_wavenumber(s.omega_e) - 2990.9463).abs() < 1e-6);
-    let morse = Morse::from_spectroscopic(
-        from_wavenumber(2990.9463),
-        from_wavenumber(52.8186),
-        from_angstrom(1.27455),
-        setup.pair.reduced_mass(),
-    );
+    let (morse, _) = common::hcl_morse();
     assert!((to_wavenumber(morse.omega_e_x_e(setup.pair.reduced_mass())) - 52.8186).abs() < 1e-9);
     // B_e = 10.5934 cm-1 from r_e (the issue's check value; H&H list 10.593416).
     assert!((to_wavenumber(s.rotational_constant) - 10.5934).abs() < 5e-5);

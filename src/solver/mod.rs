@@ -336,7 +336,7 @@ fn check_grid(
     let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
         problem.effective(r) - floor
     });
-    if let Some(i) = (0..=grid.intervals).find(|&i| !problem.effective(grid.r(i)).is_finite()) {
+    if let Some(i) = numerov.first_non_finite() {
         return Err(SolverError::NotFinite { r: grid.r(i) });
     }
     if !numerov.factor_is_positive(facts.floor - floor) {
@@ -565,73 +565,104 @@ fn solve_one(
         let end = grid::outer_bound(problem, guess, outer, cap);
         base = grid_over(counting.coarse.start, end, counting.coarse.step);
     }
-    let mut best: Option<Solved> = None;
-    for refinement in 0..=MAX_REFINEMENTS {
-        let grids = [1usize, 2, 4].map(|f| base.refined(f << refinement));
-        let mut energies = [0.0; 3];
-        let mut mean_r = [0.0; 3];
-        let mut mean_inv = [0.0; 3];
-        let mut last = None;
-        let (mut lo, mut hi) = bracket;
-        for (k, g) in grids.iter().enumerate() {
-            let numerov = check_grid(problem, facts, g)?;
-            let start = (k > 0).then(|| energies[k - 1]);
-            let level = numerov
-                .solve_level(v, lo, hi, start, 1e-3 * settings.tolerance)
-                .ok_or_else(|| SolverError::Bracket {
-                    v: v as u32,
-                    grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
-                })?;
-            energies[k] = level.energy;
-            (mean_r[k], mean_inv[k]) = expectations(g, &level.psi);
-            // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
-            let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
-            (lo, hi) = (level.energy - shift, level.energy + shift);
-            last = Some((level, *g));
-        }
-        let (energy, error_estimate) = richardson(energies);
-        let (r_avg, _) = richardson(mean_r);
-        let (inv_r2, _) = richardson(mean_inv);
-        let (level, finest) = last.expect("three grids solved");
-        let absolute = energy + floor;
-        let (inner, outer) = turning(problem, facts, absolute, 10.0 * cap);
-        let converged = error_estimate <= settings.tolerance;
-        let solved = Solved {
-            level: Level {
-                v: v as u32,
-                j: problem.j,
-                energy: absolute,
-                error_estimate,
-                converged,
-                inner_turning_point: inner,
-                outer_turning_point: outer,
-                mean_r: r_avg,
-                mean_inverse_r2: inv_r2,
-                rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
-            },
-            wavefunction: settings.keep_wavefunctions.then(|| Wavefunction {
-                v: v as u32,
-                r: (0..=finest.intervals).map(|i| finest.r(i)).collect(),
-                psi: level.psi,
-            }),
-            grid: finest,
-        };
-        // The box must also hold the converged level's tail.
-        if !fixed_range && base.end() < cap {
-            let needed = grid::outer_bound(problem, absolute, outer, cap);
+    // A step the user fixed is never refined: a level that misses the tolerance on it is
+    // reported as not converged.
+    let may_refine = settings.step.is_none();
+    let mut refinement = 0;
+    let mut box_growths = 0;
+    let mut start = None;
+    loop {
+        let solved = richardson_level(
+            problem,
+            settings,
+            facts,
+            v,
+            bracket,
+            start,
+            base.refined(1 << refinement),
+        )?;
+        start = Some(solved.level.energy - floor);
+        // The box must also hold the converged level's tail (its first size came from a guess).
+        if !fixed_range && base.end() < cap && box_growths < 4 {
+            let needed = grid::outer_bound(
+                problem,
+                solved.level.energy,
+                solved.level.outer_turning_point,
+                cap,
+            );
             if needed > base.end() * 1.0001 {
                 base = grid_over(base.start, needed, base.step);
-                best = Some(solved);
+                box_growths += 1;
                 continue;
             }
         }
-        let done = converged || fixed_range && settings.step.is_some();
-        best = Some(solved);
-        if done {
-            break;
+        if solved.level.converged || !may_refine || refinement == MAX_REFINEMENTS {
+            return Ok(solved);
         }
+        refinement += 1;
     }
-    Ok(best.expect("at least one refinement ran"))
+}
+
+/// Level v on grids with steps h, h/2, h/4 over `coarsest`'s range, Richardson-extrapolated.
+/// `start` (relative to the curve minimum) seeds the first grid when a nearby value is known.
+fn richardson_level(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+    facts: &WellFacts,
+    v: usize,
+    bracket: (f64, f64),
+    start: Option<f64>,
+    coarsest: UniformGrid,
+) -> Result<Solved, SolverError> {
+    let floor = facts.curve_minimum;
+    let grids = [1usize, 2, 4].map(|f| coarsest.refined(f));
+    let mut energies = [0.0; 3];
+    let mut mean_r = [0.0; 3];
+    let mut mean_inv = [0.0; 3];
+    let mut last = None;
+    let (mut lo, mut hi) = bracket;
+    for (k, g) in grids.iter().enumerate() {
+        let numerov = check_grid(problem, facts, g)?;
+        let seed = if k == 0 { start } else { Some(energies[k - 1]) };
+        let level = numerov
+            .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
+            .ok_or_else(|| SolverError::Bracket {
+                v: v as u32,
+                grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
+            })?;
+        energies[k] = level.energy;
+        (mean_r[k], mean_inv[k]) = expectations(g, &level.psi);
+        // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
+        let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
+        (lo, hi) = (level.energy - shift, level.energy + shift);
+        last = Some((level, *g));
+    }
+    let (energy, error_estimate) = richardson(energies);
+    let (r_avg, _) = richardson(mean_r);
+    let (inv_r2, _) = richardson(mean_inv);
+    let (level, finest) = last.expect("three grids solved");
+    let absolute = energy + floor;
+    let (inner, outer) = turning(problem, facts, absolute, 10.0 * finest.end());
+    Ok(Solved {
+        level: Level {
+            v: v as u32,
+            j: problem.j,
+            energy: absolute,
+            error_estimate,
+            converged: error_estimate <= settings.tolerance,
+            inner_turning_point: inner,
+            outer_turning_point: outer,
+            mean_r: r_avg,
+            mean_inverse_r2: inv_r2,
+            rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
+        },
+        wavefunction: settings.keep_wavefunctions.then(|| Wavefunction {
+            v: v as u32,
+            r: (0..=finest.intervals).map(|i| finest.r(i)).collect(),
+            psi: level.psi,
+        }),
+        grid: finest,
+    })
 }
 
 /// Every bound (v, J): J = 0, 1, 2, ... until no level is bound, solved in parallel in

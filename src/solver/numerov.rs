@@ -65,6 +65,11 @@ impl NumerovGrid {
         }
     }
 
+    /// Index of the first grid point where V_eff is not finite, if any.
+    pub fn first_non_finite(&self) -> Option<usize> {
+        self.twice_mu_v.iter().position(|w| !w.is_finite())
+    }
+
     /// True when 1 - h^2 Q / 12 > 0 at every point for energies at or above `energy`.
     pub fn factor_is_positive(&self, energy: f64) -> bool {
         let h2 = self.grid.step * self.grid.step;
