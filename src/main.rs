@@ -96,6 +96,9 @@ struct LevelsArgs {
     /// Every J until no level is bound (the whole bound manifold).
     #[arg(long)]
     all_j: bool,
+    /// No progress display.
+    #[arg(long, short)]
+    quiet: bool,
     /// Omega, the projection of electronic angular momentum (0 for Sigma states).
     #[arg(long, default_value_t = 0)]
     omega: u32,
@@ -297,8 +300,30 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
     };
     let mut sets: Vec<LevelSet> = Vec::new();
     if args.all_j {
-        sets = rungs::solver::solve_manifold(setup.curve.as_ref(), mu, args.omega, &settings)
-            .map_err(|e| solver_failure(&setup.source, e))?;
+        // A spinner on standard error while J rises; hidden when standard error is not a
+        // terminal (indicatif checks) or with --quiet.
+        let bar = if args.quiet {
+            indicatif::ProgressBar::hidden()
+        } else {
+            indicatif::ProgressBar::new_spinner()
+        };
+        bar.enable_steady_tick(std::time::Duration::from_millis(120));
+        bar.set_message("solving J = 0");
+        let total = std::sync::atomic::AtomicUsize::new(0);
+        let on_j = |j: u32, found: usize| {
+            let levels = total.fetch_add(found, std::sync::atomic::Ordering::Relaxed) + found;
+            bar.set_message(format!("solved J = {j}, {levels} levels so far"));
+            bar.tick();
+        };
+        let result = rungs::solver::solve_manifold_with_progress(
+            setup.curve.as_ref(),
+            mu,
+            args.omega,
+            &settings,
+            &on_j,
+        );
+        bar.finish_and_clear();
+        sets = result.map_err(|e| solver_failure(&setup.source, e))?;
     } else {
         let (first, last) = j_values(&args.j)?;
         for j in first..=last {

@@ -241,3 +241,57 @@ fn solver_refuses_bad_problems() {
         SolverError::RangeMissesWell { .. }
     ));
 }
+
+#[test]
+fn shallow_high_j_well_is_resolved() {
+    // Regression: near the top of the rotational manifold the effective well is shallow; the
+    // step once came from the (small) well depth alone, the grid could not reach into the wall,
+    // and a level was off by 1.6e-6 cm-1 while claiming 7e-8. Reference: the same level on a
+    // fixed 0.005 angstrom step (a high-resolution solve, common practice), within the sum of
+    // the two error estimates and the 1e-6 cm-1 tolerance.
+    let setup = read_curve_file(
+        Path::new("curves/demo_points.toml"),
+        &PairOverride::default(),
+    )
+    .unwrap();
+    let mu = setup.pair.reduced_mass();
+    let auto = levels(setup.curve.as_ref(), mu, 384, &SolverSettings::default());
+    let fine = levels(
+        setup.curve.as_ref(),
+        mu,
+        384,
+        &SolverSettings::default().with_grid(None, Some(from_angstrom(0.005))),
+    );
+    let (a, b) = (&auto.levels[0], &fine.levels[0]);
+    assert!(a.converged && b.converged);
+    let allowed = a.error_estimate + b.error_estimate + from_wavenumber(1e-6);
+    assert!(
+        (a.energy - b.energy).abs() < allowed,
+        "{:e} cm-1",
+        to_wavenumber(a.energy - b.energy)
+    );
+}
+
+#[test]
+fn whole_manifold_of_h2_ends_where_nothing_is_bound() {
+    // Every J of the H2 Born-Oppenheimer curve until none is bound; the count falls with J and
+    // J = 0 has the 15 levels of the published curve (Roueff et al. 2019 list 15 for J = 0).
+    let setup = read_curve_file(
+        Path::new("curves/h2_born_oppenheimer.toml"),
+        &PairOverride::default(),
+    )
+    .unwrap();
+    let sets = rungs::solver::solve_manifold(
+        setup.curve.as_ref(),
+        setup.pair.reduced_mass(),
+        0,
+        &SolverSettings::default(),
+    )
+    .unwrap();
+    assert_eq!(sets[0].levels.len(), 15);
+    assert!(sets.len() > 25, "{} J values", sets.len());
+    assert!(sets
+        .windows(2)
+        .all(|w| w[1].levels.len() <= w[0].levels.len()));
+    assert!(sets.iter().all(|s| s.levels.iter().all(|l| l.converged)));
+}

@@ -69,14 +69,19 @@ pub(super) fn solve_dvr(
     facts: &WellFacts,
 ) -> Result<LevelSet, SolverError> {
     let cap = settings.outer_cap;
-    let auto_step =
-        super::grid::step_for(problem, facts.top, facts.floor, DVR_POINTS_PER_WAVELENGTH);
+    let auto_step = super::grid::step_for(
+        problem,
+        facts.step_energy,
+        facts.floor,
+        DVR_POINTS_PER_WAVELENGTH,
+    );
     let step = settings.step.unwrap_or(auto_step);
     let (lo, hi) = match settings.r_range {
         Some(range) => range,
         None => {
             let (inner, _) = turning(problem, facts, facts.top, cap);
-            let start = super::grid::inner_bound(problem, facts.top, inner, step, f64::INFINITY);
+            let (start, _) =
+                super::grid::inner_bound(problem, facts.top, inner, step, f64::INFINITY);
             // Box: what a level bound by 1e-4 of the depth needs.
             let probe = facts.top - 1e-4 * (facts.top - facts.floor);
             let (_, outer) = turning(problem, facts, probe, cap);

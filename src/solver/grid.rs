@@ -44,13 +44,15 @@ impl UniformGrid {
 
 /// Where the grid starts: inward from the inner turning point of `energy` until the decay
 /// integral reaches the target, the Numerov factor limit is met, or r reaches `floor`.
+/// Returns the start and whether the decay target was reached (if not, the step is too
+/// coarse for the wall: a finer step lets the grid reach further in).
 pub fn inner_bound(
     problem: &RadialProblem,
     energy: f64,
     inner_turning: f64,
     step: f64,
     v_floor: f64,
-) -> f64 {
+) -> (f64, bool) {
     let mu = problem.reduced_mass;
     let floor = 1e-3 * inner_turning;
     let mut r = inner_turning;
@@ -69,10 +71,10 @@ pub fn inner_bound(
         decay += (2.0 * mu * excess.max(0.0)).sqrt() * dr;
         r = next;
         if decay >= DECAY_TARGET {
-            break;
+            return (r, true);
         }
     }
-    r
+    (r, r - dr <= floor)
 }
 
 /// Where a level at `energy` needs the grid to end: past its outer turning point until the

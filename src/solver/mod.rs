@@ -205,7 +205,7 @@ pub enum SolverError {
     Shape(#[from] ShapeError),
     #[error("no level is bound for J = {j}: the effective curve (with the centrifugal term) has no level below its dissociation limit; try a lower J")]
     NothingBound { j: u32 },
-    #[error("the grid step {step:.4e} bohr is too coarse: the Numerov factor h^2 Q/12 reaches 1 inside the range; use a step below {suggested:.4e} bohr or move r_min outward")]
+    #[error("the grid step {step:.4e} bohr is too coarse for the inner wall: the Numerov factor h^2 Q/12 nears 1 before the wavefunction has decayed; use a step below {suggested:.4e} bohr or move r_min outward")]
     StepTooCoarse { step: f64, suggested: f64 },
     #[error("the grid step {step:.4e} bohr gives fewer than 4 points per wavelength at the bottom of the well; use a step below {suggested:.4e} bohr")]
     UnderResolved { step: f64, suggested: f64 },
@@ -234,6 +234,9 @@ struct WellFacts {
     /// True when `top` is the dissociation limit.
     top_is_limit: bool,
     curve_minimum: f64,
+    /// The energy whose local wavelength sets the grid step: the top, but at least two
+    /// harmonic quanta above the floor, so a shallow well (high J) is still resolved.
+    step_energy: f64,
 }
 
 fn well_facts(
@@ -267,12 +270,15 @@ fn well_facts(
     if top <= effective.v_min {
         return Err(SolverError::NothingBound { j: problem.j });
     }
+    let top = top.min(problem.curve.limit().unwrap_or(f64::INFINITY));
+    let quantum = (effective.force_constant.max(0.0) / problem.reduced_mass).sqrt();
     Ok(WellFacts {
         floor: effective.v_min,
         r_floor: effective.r_min,
-        top: top.min(problem.curve.limit().unwrap_or(f64::INFINITY)),
+        top,
         top_is_limit,
         curve_minimum: bare.v_min,
+        step_energy: top.max(effective.v_min + 2.0 * quantum),
     })
 }
 
@@ -305,6 +311,9 @@ pub fn solve(problem: &RadialProblem, settings: &SolverSettings) -> Result<Level
 struct Counting {
     coarse: UniformGrid,
     audit: CountAudit,
+    /// The counting box at a quarter of the coarse step: every level's grids (h, h/2, h/4
+    /// over a prefix of the box) are subsamplings of it.
+    lattice: NumerovGrid,
 }
 
 fn turning(problem: &RadialProblem, facts: &WellFacts, energy: f64, cap: f64) -> (f64, f64) {
@@ -327,14 +336,37 @@ fn grid_over(start: f64, end: f64, step: f64) -> UniformGrid {
     }
 }
 
+/// The grid at the same start with a fixed `step` whose end reaches at least `end`.
+fn covering(start: f64, end: f64, step: f64) -> UniformGrid {
+    UniformGrid {
+        start,
+        step,
+        intervals: ((end - start) / step).ceil().max(4.0) as usize,
+    }
+}
+
+/// The Numerov data of `grid`: taken from the shared fine `lattice` when `grid` is a
+/// subsampling of it (no potential evaluated again), else tabulated; then validated.
 fn check_grid(
     problem: &RadialProblem,
     facts: &WellFacts,
     grid: &UniformGrid,
+    lattice: Option<&NumerovGrid>,
 ) -> Result<NumerovGrid, SolverError> {
     let floor = facts.curve_minimum;
-    let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
-        problem.effective(r) - floor
+    let from_lattice = lattice.and_then(|fine| {
+        let stride = (grid.step / fine.grid.step).round();
+        let aligned = grid.start == fine.grid.start
+            && stride >= 1.0
+            && (grid.step - stride * fine.grid.step).abs() <= 1e-12 * grid.step;
+        aligned
+            .then(|| fine.subsample(stride as usize, grid.intervals))
+            .flatten()
+    });
+    let numerov = from_lattice.unwrap_or_else(|| {
+        NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
+            problem.effective(r) - floor
+        })
     });
     if let Some(i) = numerov.first_non_finite() {
         return Err(SolverError::NotFinite { r: grid.r(i) });
@@ -357,7 +389,7 @@ fn counting_box(
     let depth = facts.top - facts.floor;
     let auto_step = grid::step_for(
         problem,
-        facts.top,
+        facts.step_energy,
         facts.floor,
         NUMEROV_POINTS_PER_WAVELENGTH,
     );
@@ -379,10 +411,11 @@ fn counting_box(
             });
         }
         let coarse = grid_over(lo, hi, step);
-        let numerov = check_grid(problem, facts, &coarse)?;
-        let bound_levels = numerov.count_below(facts.top - facts.curve_minimum);
+        let lattice = check_grid(problem, facts, &coarse.refined(4), None)?;
+        let bound_levels = lattice.count_below(facts.top - facts.curve_minimum);
         return Ok(Counting {
             coarse,
+            lattice,
             audit: CountAudit {
                 bound_levels,
                 box_outer: hi,
@@ -392,14 +425,30 @@ fn counting_box(
             },
         });
     }
-    let start = grid::inner_bound(problem, facts.top, inner_turning, step, facts.floor);
+    // The wall must be reached deep enough (decay target) before the Numerov factor limit
+    // stops the grid; an automatic step is halved until it is.
+    let mut step = step;
+    let start = loop {
+        let (start, deep_enough) =
+            grid::inner_bound(problem, facts.top, inner_turning, step, facts.floor);
+        if deep_enough {
+            break start;
+        }
+        if settings.step.is_some() || step < 1e-3 * auto_step {
+            return Err(SolverError::StepTooCoarse {
+                step,
+                suggested: 0.5 * step,
+            });
+        }
+        step *= 0.5;
+    };
     // Start with the box a level bound by 1e-4 of the depth would need; double until stable.
     let probe = facts.top - 1e-4 * depth;
     let (_, probe_outer) = turning(problem, facts, probe, cap);
     let mut end = grid::outer_bound(problem, probe, probe_outer, cap);
     let count_at = |end: f64| -> Result<(UniformGrid, usize), SolverError> {
-        let coarse = grid_over(start, end, step);
-        let numerov = check_grid(problem, facts, &coarse)?;
+        let coarse = covering(start, end, step);
+        let numerov = check_grid(problem, facts, &coarse, None)?;
         Ok((coarse, numerov.count_below(facts.top - facts.curve_minimum)))
     };
     let (mut coarse, mut count) = count_at(end)?;
@@ -416,9 +465,9 @@ fn counting_box(
     // The coarse step can also push a level just below the limit above it: count again on
     // the finest step of the Richardson sequence and keep the larger count (levels that end
     // up above the limit once converged are rejected later).
+    let lattice = check_grid(problem, facts, &coarse.refined(4), None)?;
     if facts.top_is_limit {
-        let fine = check_grid(problem, facts, &coarse.refined(4))?;
-        count = count.max(fine.count_below(facts.top - facts.curve_minimum));
+        count = count.max(lattice.count_below(facts.top - facts.curve_minimum));
     }
     // A level needing more than twice this box to show would be bound by less than this.
     let undetectable_binding = if facts.top_is_limit {
@@ -429,6 +478,7 @@ fn counting_box(
     };
     Ok(Counting {
         coarse,
+        lattice,
         audit: CountAudit {
             bound_levels: count,
             box_outer: coarse.end(),
@@ -476,7 +526,7 @@ fn solve_numerov(
 ) -> Result<LevelSet, SolverError> {
     let counting = counting_box(problem, settings, facts)?;
     let floor = facts.curve_minimum;
-    let coarse = check_grid(problem, facts, &counting.coarse)?;
+    let coarse = check_grid(problem, facts, &counting.coarse, Some(&counting.lattice))?;
     let mut count = counting.audit.bound_levels;
     if let Some(v) = settings.highest_v {
         count = count.min(v as usize + 1);
@@ -489,15 +539,13 @@ fn solve_numerov(
     let solved: Vec<Result<Solved, SolverError>> = (0..count)
         .into_par_iter()
         .map(|v| {
-            solve_one(
+            let job = Job {
                 problem,
                 settings,
                 facts,
-                &counting,
-                v,
-                brackets[v],
-                fixed_range,
-            )
+                counting: &counting,
+            };
+            solve_one(&job, v, brackets[v], fixed_range)
         })
         .collect();
     let mut levels = Vec::with_capacity(count);
@@ -546,24 +594,41 @@ fn expectations(grid: &UniformGrid, psi: &[f64]) -> (f64, f64) {
     (mean_r, mean_inv)
 }
 
+/// What every level of one J shares.
+struct Job<'a> {
+    problem: &'a RadialProblem<'a>,
+    settings: &'a SolverSettings,
+    facts: &'a WellFacts,
+    counting: &'a Counting,
+}
+
 fn solve_one(
-    problem: &RadialProblem,
-    settings: &SolverSettings,
-    facts: &WellFacts,
-    counting: &Counting,
+    job: &Job,
     v: usize,
     bracket: (f64, f64),
     fixed_range: bool,
 ) -> Result<Solved, SolverError> {
+    let (problem, settings, facts, counting) = (job.problem, job.settings, job.facts, job.counting);
     let floor = facts.curve_minimum;
     let cap = counting.coarse.end();
     // The box this level needs: decay past its outer turning point at the top of its bracket.
-    let guess = floor + bracket.1.min(facts.top - floor);
+    // When the bracket reaches the limit (the least-bound level), the top of the bracket says
+    // nothing: solve once on the coarse counting grid for a guess instead.
+    let mut guess = floor + bracket.1.min(facts.top - floor);
     let mut base = counting.coarse;
+    if !fixed_range && bracket.1 >= facts.top - floor {
+        let coarse = check_grid(problem, facts, &counting.coarse, Some(&counting.lattice))?;
+        if let Some(level) =
+            coarse.solve_level(v, bracket.0, bracket.1, None, 1e-3 * settings.tolerance)
+        {
+            guess = floor + level.energy;
+        }
+    }
     if !fixed_range {
         let (_, outer) = turning(problem, facts, guess, cap);
         let end = grid::outer_bound(problem, guess, outer, cap);
-        base = grid_over(counting.coarse.start, end, counting.coarse.step);
+        base = covering(counting.coarse.start, end, counting.coarse.step);
+        base.intervals = base.intervals.min(counting.coarse.intervals);
     }
     // A step the user fixed is never refined: a level that misses the tolerance on it is
     // reported as not converged.
@@ -572,15 +637,7 @@ fn solve_one(
     let mut box_growths = 0;
     let mut start = None;
     loop {
-        let solved = richardson_level(
-            problem,
-            settings,
-            facts,
-            v,
-            bracket,
-            start,
-            base.refined(1 << refinement),
-        )?;
+        let solved = richardson_level(job, v, bracket, start, base.refined(1 << refinement))?;
         start = Some(solved.level.energy - floor);
         // The box must also hold the converged level's tail (its first size came from a guess).
         if !fixed_range && base.end() < cap && box_growths < 4 {
@@ -591,7 +648,8 @@ fn solve_one(
                 cap,
             );
             if needed > base.end() * 1.0001 {
-                base = grid_over(base.start, needed, base.step);
+                base = covering(base.start, needed, base.step);
+                base.intervals = base.intervals.min(counting.coarse.intervals);
                 box_growths += 1;
                 continue;
             }
@@ -606,14 +664,14 @@ fn solve_one(
 /// Level v on grids with steps h, h/2, h/4 over `coarsest`'s range, Richardson-extrapolated.
 /// `start` (relative to the curve minimum) seeds the first grid when a nearby value is known.
 fn richardson_level(
-    problem: &RadialProblem,
-    settings: &SolverSettings,
-    facts: &WellFacts,
+    job: &Job,
     v: usize,
     bracket: (f64, f64),
     start: Option<f64>,
     coarsest: UniformGrid,
 ) -> Result<Solved, SolverError> {
+    let (problem, settings, facts) = (job.problem, job.settings, job.facts);
+    let lattice = &job.counting.lattice;
     let floor = facts.curve_minimum;
     let grids = [1usize, 2, 4].map(|f| coarsest.refined(f));
     let mut energies = [0.0; 3];
@@ -622,7 +680,7 @@ fn richardson_level(
     let mut last = None;
     let (mut lo, mut hi) = bracket;
     for (k, g) in grids.iter().enumerate() {
-        let numerov = check_grid(problem, facts, g)?;
+        let numerov = check_grid(problem, facts, g, Some(lattice))?;
         let seed = if k == 0 { start } else { Some(energies[k - 1]) };
         let level = numerov
             .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
@@ -665,13 +723,25 @@ fn richardson_level(
     })
 }
 
-/// Every bound (v, J): J = 0, 1, 2, ... until no level is bound, solved in parallel in
-/// batches of J. Returns one [`LevelSet`] per J, in order.
+/// Every bound (v, J): J = Omega, Omega + 1, ... until no level is bound, solved in parallel
+/// in batches of J. Returns one [`LevelSet`] per J, in order.
 pub fn solve_manifold(
     curve: &dyn PotentialCurve,
     reduced_mass: f64,
     omega: u32,
     settings: &SolverSettings,
+) -> Result<Vec<LevelSet>, SolverError> {
+    solve_manifold_with_progress(curve, reduced_mass, omega, settings, &|_, _| {})
+}
+
+/// As [`solve_manifold`], calling `progress(J, levels found)` after each J is solved (from
+/// worker threads, in any order), for a progress display.
+pub fn solve_manifold_with_progress(
+    curve: &dyn PotentialCurve,
+    reduced_mass: f64,
+    omega: u32,
+    settings: &SolverSettings,
+    progress: &(dyn Fn(u32, usize) + Sync),
 ) -> Result<Vec<LevelSet>, SolverError> {
     let batch = 2 * rayon::current_num_threads().max(1) as u32;
     let mut sets = Vec::new();
@@ -682,7 +752,9 @@ pub fn solve_manifold(
             .map(|j| {
                 let mut problem = RadialProblem::new(curve, reduced_mass, j);
                 problem.omega = omega;
-                solve(&problem, settings)
+                let result = solve(&problem, settings);
+                progress(j, result.as_ref().map_or(0, |set| set.levels.len()));
+                result
             })
             .collect();
         for result in results {

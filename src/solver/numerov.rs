@@ -65,6 +65,37 @@ impl NumerovGrid {
         }
     }
 
+    /// From values 2 mu V_eff already tabulated at the grid's points.
+    pub fn from_values(grid: UniformGrid, reduced_mass: f64, twice_mu_v: Vec<f64>) -> NumerovGrid {
+        debug_assert_eq!(twice_mu_v.len(), grid.intervals + 1);
+        NumerovGrid {
+            grid,
+            twice_mu_v,
+            reduced_mass,
+        }
+    }
+
+    /// The values at every `stride`-th point, up to `intervals` strides: the same potential on
+    /// a coarser grid sharing this grid's start.
+    pub fn subsample(&self, stride: usize, intervals: usize) -> Option<NumerovGrid> {
+        if stride == 0 || intervals * stride > self.grid.intervals {
+            return None;
+        }
+        let grid = UniformGrid {
+            start: self.grid.start,
+            step: self.grid.step * stride as f64,
+            intervals,
+        };
+        let values = self
+            .twice_mu_v
+            .iter()
+            .step_by(stride)
+            .take(intervals + 1)
+            .copied()
+            .collect();
+        Some(NumerovGrid::from_values(grid, self.reduced_mass, values))
+    }
+
     /// Index of the first grid point where V_eff is not finite, if any.
     pub fn first_non_finite(&self) -> Option<usize> {
         self.twice_mu_v.iter().position(|w| !w.is_finite())
@@ -77,28 +108,46 @@ impl NumerovGrid {
         self.twice_mu_v.iter().all(|&w| h2 * (w - e2) / 12.0 < 1.0)
     }
 
-    #[inline]
-    fn diagonal(&self, i: usize, twice_mu_e: f64) -> (f64, f64) {
-        let h2 = self.grid.step * self.grid.step;
-        let q = self.twice_mu_v[i] - twice_mu_e;
-        let factor = 1.0 - h2 * q / 12.0;
-        (2.0 + h2 * q / factor, factor)
-    }
-
     /// Number of discrete levels below `energy`: negative pivots of LDL^T of A(E).
+    ///
+    /// The pivots are d_i = p_i / p_{i-1} with the leading minors p_i = a_i p_{i-1} - p_{i-2}.
+    /// Multiplying p_i by the positive product f_1 ... f_i (f = 1 - h^2 Q / 12) gives
+    /// P_i = (2 f_i + h^2 Q_i) P_{i-1} - f_i f_{i-1} P_{i-2}, with the same signs and no
+    /// division; a pivot is negative where P changes sign. P is rescaled before it can overflow.
     pub fn count_below(&self, energy: f64) -> usize {
         let n = self.grid.intervals;
+        if n < 2 {
+            return 0;
+        }
+        let h2 = self.grid.step * self.grid.step;
+        let h2_12 = h2 / 12.0;
         let e2 = 2.0 * self.reduced_mass * energy;
         let mut count = 0;
-        let mut pivot = 1.0;
+        let (mut previous, mut current) = (1.0f64, 1.0f64);
+        let mut factor_before = 1.0;
         for i in 1..n {
-            let (a, _) = self.diagonal(i, e2);
-            pivot = if i == 1 { a } else { a - 1.0 / pivot };
-            if pivot == 0.0 {
-                pivot = -f64::EPSILON * a.abs().max(1.0);
+            let q = self.twice_mu_v[i] - e2;
+            let factor = 1.0 - h2_12 * q;
+            let mut next = (2.0 * factor + h2 * q) * current
+                - if i == 1 {
+                    0.0
+                } else {
+                    factor * factor_before * previous
+                };
+            if next == 0.0 {
+                // A zero minor: count it as a negative pivot, as LDL^T with a tiny negative d would.
+                next = -f64::MIN_POSITIVE * current.signum();
             }
-            if pivot < 0.0 {
+            if (next < 0.0) != (current < 0.0) {
                 count += 1;
+            }
+            (previous, current) = (current, next);
+            factor_before = factor;
+            let size = current.abs();
+            if !(1e-150..=1e150).contains(&size) {
+                let scale = 1.0 / size;
+                previous *= scale;
+                current *= scale;
             }
         }
         count
@@ -108,51 +157,55 @@ impl NumerovGrid {
     /// Cooley's energy correction.
     fn shoot(&self, energy: f64) -> (Vec<f64>, f64) {
         let n = self.grid.intervals;
+        let h2 = self.grid.step * self.grid.step;
+        let h2_12 = h2 / 12.0;
         let e2 = 2.0 * self.reduced_mass * energy;
-        let mut y = vec![0.0; n + 1];
-        let mut a = vec![0.0; n + 1];
-        let mut factor = vec![1.0; n + 1];
-        for i in 1..n {
-            (a[i], factor[i]) = self.diagonal(i, e2);
-        }
+        let w = &self.twice_mu_v;
+        // a_i and 1/f_i at point i.
+        let diagonal = |i: usize| {
+            let q = w[i] - e2;
+            let inverse_factor = 1.0 / (1.0 - h2_12 * q);
+            (2.0 + h2 * q * inverse_factor, inverse_factor)
+        };
         // Matching point: the outermost point inside the classically allowed region.
         let m = (1..n)
             .rev()
-            .find(|&i| self.twice_mu_v[i] < e2)
+            .find(|&i| w[i] < e2)
             .unwrap_or(n / 2)
             .clamp(2.min(n - 1), (n - 2).max(1));
         const TINY: f64 = 1e-30;
         const HUGE: f64 = 1e250;
+        let mut y = vec![0.0; n + 1];
         y[1] = TINY;
         for i in 1..m {
-            y[i + 1] = a[i] * y[i] - y[i - 1];
+            y[i + 1] = diagonal(i).0 * y[i] - y[i - 1];
             if y[i + 1].abs() > HUGE {
                 y[..=i + 1].iter_mut().for_each(|v| *v /= HUGE);
             }
         }
         let outward_at_m = y[m];
-        let mut inward = vec![0.0; n + 1];
-        inward[n - 1] = TINY;
+        // Inward from the outer end into the same vector, from n - 1 down to m.
+        y[n - 1] = TINY;
         for i in (m + 1..n).rev() {
-            inward[i - 1] = a[i] * inward[i] - inward[i + 1];
-            if inward[i - 1].abs() > HUGE {
-                inward[i - 1..].iter_mut().for_each(|v| *v /= HUGE);
+            y[i - 1] = diagonal(i).0 * y[i] - y[i + 1];
+            if y[i - 1].abs() > HUGE {
+                y[i - 1..].iter_mut().for_each(|v| *v /= HUGE);
             }
         }
-        let scale = if inward[m] != 0.0 {
-            outward_at_m / inward[m]
+        let scale = if y[m] != 0.0 {
+            outward_at_m / y[m]
         } else {
             1.0
         };
-        for i in m + 1..n {
-            y[i] = inward[i] * scale;
+        y[m..n].iter_mut().for_each(|v| *v *= scale);
+        let defect = diagonal(m).0 * y[m] - y[m - 1] - y[m + 1];
+        let mut norm = 0.0;
+        for (i, value) in y.iter_mut().enumerate().take(n).skip(1) {
+            *value *= diagonal(i).1;
+            norm += *value * *value;
         }
-        let defect = a[m] * y[m] - y[m - 1] - y[m + 1];
-        let psi: Vec<f64> = y.iter().zip(&factor).map(|(v, f)| v / f).collect();
-        let norm: f64 = psi.iter().map(|p| p * p).sum();
-        let h2 = self.grid.step * self.grid.step;
-        let correction = psi[m] * defect / (2.0 * self.reduced_mass * h2 * norm);
-        (psi, correction)
+        let correction = y[m] * defect / (2.0 * self.reduced_mass * h2 * norm);
+        (y, correction)
     }
 
     /// Solve discrete level `v`. With a `start` energy close to the level (from a coarser
