@@ -276,6 +276,8 @@ fn shallow_high_j_well_is_resolved() {
 fn whole_manifold_of_h2_ends_where_nothing_is_bound() {
     // Every J of the H2 Born-Oppenheimer curve until none is bound; the count falls with J and
     // J = 0 has the 15 levels of the published curve (Roueff et al. 2019 list 15 for J = 0).
+    // H2 binds rotational levels up to about J = 31 (recalled from memory), so more than 25
+    // values of J must come back.
     let setup = read_curve_file(
         Path::new("curves/h2_born_oppenheimer.toml"),
         &PairOverride::default(),
