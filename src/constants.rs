@@ -1,0 +1,230 @@
+//! Spectroscopic constants from computed (or measured) levels: spacings, Dunham-type
+//! polynomial fits of G(v) and B_v in (v + 1/2), and the Birge-Sponer extrapolation.
+//!
+//! Fits (G. Herzberg, "Spectra of Diatomic Molecules" (1950), ch. III; J.L. Dunham, Phys. Rev.
+//! 41, 721 (1932)):
+//!
+//! ```text
+//!   G(v) = G_0 + omega_e (v+1/2) - omega_e x_e (v+1/2)^2 + omega_e y_e (v+1/2)^3 + ...
+//!   B_v  = B_e - alpha_e (v+1/2) + gamma_e (v+1/2)^2 + ...
+//! ```
+//!
+//! solved as linear least squares by QR (faer), with standard errors from the residual
+//! variance and (A^T A)^-1 = R^-1 R^-T. Knows nothing of files or reports; energies in hartree.
+
+use crate::solver::LevelSet;
+use faer::linalg::solvers::SolveLstsq;
+use faer::Mat;
+
+/// A least-squares polynomial fit y = sum_k c_k x^k.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PolynomialFit {
+    /// c_0 .. c_order.
+    pub coefficients: Vec<f64>,
+    /// Standard errors of the coefficients (zero when the fit is exact: points = terms).
+    pub standard_errors: Vec<f64>,
+    /// Root-mean-square residual.
+    pub rms_residual: f64,
+    pub points: usize,
+}
+
+/// Problems fitting.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum FitError {
+    #[error("a fit of order {order} needs at least {needed} levels, {found} given; lower the order or widen the v range")]
+    TooFewPoints {
+        order: usize,
+        needed: usize,
+        found: usize,
+    },
+    #[error("the fit is singular (repeated v values?)")]
+    Singular,
+}
+
+/// Least-squares polynomial of the given order through (x, y).
+// The triangular inverse below reads best with explicit indices.
+#[allow(clippy::needless_range_loop)]
+pub fn polynomial_fit(x: &[f64], y: &[f64], order: usize) -> Result<PolynomialFit, FitError> {
+    let terms = order + 1;
+    let n = x.len();
+    if n < terms {
+        return Err(FitError::TooFewPoints {
+            order,
+            needed: terms,
+            found: n,
+        });
+    }
+    // Scale x to [-1, 1]-ish for conditioning; unscale the coefficients afterwards.
+    let scale = x.iter().fold(0.0f64, |m, v| m.max(v.abs())).max(1e-300);
+    let design = Mat::from_fn(n, terms, |i, k| (x[i] / scale).powi(k as i32));
+    let rhs = Mat::from_fn(n, 1, |i, _| y[i]);
+    let qr = design.qr();
+    let solution = qr.solve_lstsq(&rhs);
+    let scaled: Vec<f64> = (0..terms).map(|k| solution[(k, 0)]).collect();
+    if scaled.iter().any(|c| !c.is_finite()) {
+        return Err(FitError::Singular);
+    }
+    let residuals: Vec<f64> = (0..n)
+        .map(|i| {
+            y[i] - (0..terms)
+                .map(|k| scaled[k] * (x[i] / scale).powi(k as i32))
+                .sum::<f64>()
+        })
+        .collect();
+    let rss: f64 = residuals.iter().map(|r| r * r).sum();
+    let variance = if n > terms {
+        rss / (n - terms) as f64
+    } else {
+        0.0
+    };
+    // (A^T A)^-1 = R^-1 R^-T; invert the small upper-triangular R by back substitution.
+    let r = qr.thin_R();
+    let mut r_inv = vec![vec![0.0; terms]; terms];
+    for col in 0..terms {
+        for row in (0..=col).rev() {
+            let identity = if row == col { 1.0 } else { 0.0 };
+            let sum: f64 = (row + 1..=col).map(|k| r[(row, k)] * r_inv[k][col]).sum();
+            r_inv[row][col] = (identity - sum) / r[(row, row)];
+        }
+    }
+    let standard_errors = (0..terms)
+        .map(|k| {
+            let diagonal: f64 = (0..terms).map(|j| r_inv[k][j] * r_inv[k][j]).sum();
+            (variance * diagonal).sqrt() / scale.powi(k as i32)
+        })
+        .collect();
+    Ok(PolynomialFit {
+        coefficients: scaled
+            .iter()
+            .enumerate()
+            .map(|(k, c)| c / scale.powi(k as i32))
+            .collect(),
+        standard_errors,
+        rms_residual: (rss / n as f64).sqrt(),
+        points: n,
+    })
+}
+
+/// Vibrational spacings Delta G(v+1/2) = G(v+1) - G(v) and second differences
+/// Delta^2 G(v+1) = Delta G(v+3/2) - Delta G(v+1/2), hartree.
+pub fn spacings(set: &LevelSet) -> (Vec<f64>, Vec<f64>) {
+    let first: Vec<f64> = set
+        .levels
+        .windows(2)
+        .map(|w| w[1].energy - w[0].energy)
+        .collect();
+    let second = first.windows(2).map(|w| w[1] - w[0]).collect();
+    (first, second)
+}
+
+/// Levels with v in `v_range` (inclusive), as (v + 1/2, energy, B_v).
+fn selected(set: &LevelSet, v_range: (u32, u32)) -> Vec<(f64, f64, f64)> {
+    set.levels
+        .iter()
+        .filter(|l| l.v >= v_range.0 && l.v <= v_range.1)
+        .map(|l| (f64::from(l.v) + 0.5, l.energy, l.rotational_constant))
+        .collect()
+}
+
+/// Fit G(v) over `v_range` with a polynomial of `order` in (v + 1/2). Returns the fit; the
+/// spectroscopic constants are omega_e = c_1, omega_e x_e = -c_2, omega_e y_e = c_3.
+pub fn fit_vibrational(
+    set: &LevelSet,
+    v_range: (u32, u32),
+    order: usize,
+) -> Result<PolynomialFit, FitError> {
+    let points = selected(set, v_range);
+    let x: Vec<f64> = points.iter().map(|p| p.0).collect();
+    let y: Vec<f64> = points.iter().map(|p| p.1).collect();
+    polynomial_fit(&x, &y, order)
+}
+
+/// Fit B_v over `v_range` with a polynomial of `order` in (v + 1/2): B_e = c_0,
+/// alpha_e = -c_1, gamma_e = c_2.
+pub fn fit_rotational(
+    set: &LevelSet,
+    v_range: (u32, u32),
+    order: usize,
+) -> Result<PolynomialFit, FitError> {
+    let points = selected(set, v_range);
+    let x: Vec<f64> = points.iter().map(|p| p.0).collect();
+    let y: Vec<f64> = points.iter().map(|p| p.2).collect();
+    polynomial_fit(&x, &y, order)
+}
+
+/// Birge-Sponer estimate of the dissociation energy from v = 0 (hartree): the sum of the
+/// spacings Delta G(v+1/2) up to the highest level, plus the area under the straight line
+/// fitted to the last `tail_points` spacings (against v + 1) from there to where it reaches
+/// zero (R.T. Birge and H. Sponer, Phys. Rev. 28, 259 (1926)). None when the fitted line
+/// does not fall to zero.
+pub fn birge_sponer(set: &LevelSet, tail_points: usize) -> Option<f64> {
+    let (delta, _) = spacings(set);
+    if delta.len() < 2 {
+        return None;
+    }
+    let used = tail_points.clamp(2, delta.len());
+    let start = delta.len() - used;
+    let x: Vec<f64> = (start..delta.len()).map(|v| v as f64 + 1.0).collect();
+    let line = polynomial_fit(&x, &delta[start..], 1).ok()?;
+    let (a, b) = (line.coefficients[0], line.coefficients[1]);
+    if b >= 0.0 {
+        return None;
+    }
+    let observed: f64 = delta.iter().sum();
+    let u_last = delta.len() as f64; // u = v + 1 of the last observed spacing's upper level
+    let u_zero = -a / b;
+    let area = if u_zero > u_last {
+        // The unseen spacings at u = u_last + 1, u_last + 2, ... summed by the midpoint rule,
+        // i.e. the area under the line from u_last + 1/2 to its zero (exact for a straight
+        // line up to the fraction of a spacing at the zero).
+        let from = u_last + 0.5;
+        (a * (u_zero - from) + 0.5 * b * (u_zero * u_zero - from * from)).max(0.0)
+    } else {
+        0.0
+    };
+    Some(observed + area)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fits_a_known_polynomial_exactly() {
+        let x: Vec<f64> = (0..20).map(|v| f64::from(v) + 0.5).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .map(|t| 3.0 + 2000.0 * t - 15.0 * t * t + 0.02 * t * t * t)
+            .collect();
+        let fit = polynomial_fit(&x, &y, 3).unwrap();
+        for (c, expected) in fit.coefficients.iter().zip([3.0, 2000.0, -15.0, 0.02]) {
+            assert!(
+                (c - expected).abs() < 1e-8 * expected.abs().max(1.0),
+                "{c} vs {expected}"
+            );
+        }
+        assert!(fit.standard_errors.iter().all(|e| *e < 1e-8));
+    }
+
+    #[test]
+    fn standard_errors_of_a_straight_line() {
+        // y = 1 + 2x with residuals +-0.1 alternating: slope error from the textbook formula
+        // sigma / sqrt(sum (x - mean)^2), sigma^2 = RSS / (n - 2) (common practice).
+        let x: Vec<f64> = (0..10).map(f64::from).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(i, t)| 1.0 + 2.0 * t + if i % 2 == 0 { 0.1 } else { -0.1 })
+            .collect();
+        let fit = polynomial_fit(&x, &y, 1).unwrap();
+        let mean = 4.5;
+        let sxx: f64 = x.iter().map(|t| (t - mean) * (t - mean)).sum();
+        let residual: Vec<f64> = x
+            .iter()
+            .zip(&y)
+            .map(|(t, v)| v - fit.coefficients[0] - fit.coefficients[1] * t)
+            .collect();
+        let sigma = (residual.iter().map(|r| r * r).sum::<f64>() / 8.0).sqrt();
+        assert!((fit.standard_errors[1] - sigma / sxx.sqrt()).abs() < 1e-12);
+    }
+}

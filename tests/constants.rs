@@ -1,0 +1,75 @@
+//! Spectroscopic constants from computed levels, against Morse's exact formula and Pekeris.
+
+use rungs::constants::{birge_sponer, fit_rotational, fit_vibrational, spacings};
+use rungs::solver::{solve, RadialProblem, SolverSettings};
+
+mod common;
+
+#[test]
+fn morse_fit_returns_its_constants() {
+    // For a Morse curve G(v) is exactly omega_e (v+1/2) - omega_e x_e (v+1/2)^2 (Morse 1929),
+    // so a cubic fit returns omega_e and omega_e x_e to 1e-6 relative and omega_e y_e ~ 0.
+    let (morse, mu) = common::hcl_morse();
+    let set = solve(
+        &RadialProblem::new(&morse, mu, 0),
+        &SolverSettings::default(),
+    )
+    .unwrap();
+    let fit = fit_vibrational(&set, (0, 20), 3).unwrap();
+    let (we, wexe) = (morse.omega_e(mu), morse.omega_e_x_e(mu));
+    assert!(((fit.coefficients[1] - we) / we).abs() < 1e-6, "omega_e");
+    assert!(
+        ((-fit.coefficients[2] - wexe) / wexe).abs() < 1e-6,
+        "omega_e x_e"
+    );
+    assert!(fit.coefficients[3].abs() < 1e-6 * wexe, "omega_e y_e");
+}
+
+#[test]
+fn rotational_fit_follows_pekeris() {
+    // Pekeris, Phys. Rev. 45, 98 (1934): alpha_e = 6 sqrt(omega_e x_e B_e^3)/omega_e - 6 B_e^2/omega_e.
+    // The fitted B_e equals 1/(2 mu r_e^2) and alpha_e the formula, to the formula's order
+    // (next terms of relative size alpha_e/B_e, recalled from memory as the expansion parameter).
+    let (morse, mu) = common::hcl_morse();
+    let set = solve(
+        &RadialProblem::new(&morse, mu, 0),
+        &SolverSettings::default().with_highest_v(Some(8)),
+    )
+    .unwrap();
+    let fit = fit_rotational(&set, (0, 8), 2).unwrap();
+    let (we, wexe) = (morse.omega_e(mu), morse.omega_e_x_e(mu));
+    let b_e = 1.0 / (2.0 * mu * morse.r_e * morse.r_e);
+    let alpha = 6.0 * (wexe * b_e.powi(3)).sqrt() / we - 6.0 * b_e * b_e / we;
+    let order = alpha / b_e;
+    assert!(
+        ((fit.coefficients[0] - b_e) / b_e).abs() < order * order,
+        "B_e"
+    );
+    assert!(
+        ((-fit.coefficients[1] - alpha) / alpha).abs() < order,
+        "alpha_e"
+    );
+}
+
+#[test]
+fn spacings_and_birge_sponer_of_a_morse() {
+    // A Morse curve has Delta G(v+1/2) = omega_e - 2 omega_e x_e (v+1) exactly (Morse 1929),
+    // so Delta^2 G = -2 omega_e x_e and the Birge-Sponer line reaches D_0 = D_e - G(0) to within
+    // a fraction of the last spacing.
+    let (morse, mu) = common::hcl_morse();
+    let set = solve(
+        &RadialProblem::new(&morse, mu, 0),
+        &SolverSettings::default(),
+    )
+    .unwrap();
+    let (first, second) = spacings(&set);
+    let wexe = morse.omega_e_x_e(mu);
+    assert!(second
+        .iter()
+        .all(|d| ((d + 2.0 * wexe) / wexe).abs() < 1e-6));
+    assert_eq!(first.len(), set.levels.len() - 1);
+    let d0 = birge_sponer(&set, 5).unwrap();
+    let exact = morse.well_depth - set.levels[0].energy;
+    let last_spacing = *first.last().unwrap();
+    assert!((d0 - exact).abs() < last_spacing, "{d0} vs {exact}");
+}
