@@ -40,6 +40,12 @@ enum Command {
         after_help = "Examples:\n  rungs levels curves/demo_morse.toml\n  rungs levels curves/h2_born_oppenheimer.toml --j 0-5 --format csv\n  rungs levels curves/demo_morse.toml --all-j --energy-unit eV\n  rungs levels curves/demo_morse.toml --wavefunctions psi.csv --v 0,1,2"
     )]
     Levels(Box<LevelsArgs>),
+    /// Spectroscopic constants from the levels: omega_e, omega_e x_e, ..., B_e, alpha_e, ...
+    /// by least squares over a v range, and a Birge-Sponer dissociation estimate.
+    #[command(
+        after_help = "Examples:\n  rungs constants curves/demo_morse.toml\n  rungs constants curves/h2_born_oppenheimer.toml --v-range 0-5 --order 3 --format json"
+    )]
+    Constants(ConstantsArgs),
 }
 
 #[derive(Args)]
@@ -129,6 +135,26 @@ struct LevelsArgs {
     /// Which v to write with --wavefunctions, e.g. 0,1,5 (default: all).
     #[arg(long, value_delimiter = ',')]
     v: Option<Vec<u32>>,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+#[derive(Args)]
+struct ConstantsArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// Levels used in the fits, e.g. 0-10 (default: all bound levels).
+    #[arg(long)]
+    v_range: Option<String>,
+    /// Order of the G(v) polynomial in (v + 1/2).
+    #[arg(long, default_value_t = 3)]
+    order: usize,
+    /// Order of the B_v polynomial in (v + 1/2).
+    #[arg(long, default_value_t = 2)]
+    rotation_order: usize,
+    /// Spacings at the top used for the Birge-Sponer line.
+    #[arg(long, default_value_t = 5)]
+    birge_sponer_points: usize,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -358,11 +384,49 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
     })
 }
 
+fn constants(args: ConstantsArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let mu = setup.pair.reduced_mass();
+    let settings = SolverSettings::default();
+    let set = solver::solve(&RadialProblem::new(setup.curve.as_ref(), mu, 0), &settings)
+        .map_err(|e| solver_failure(&setup.source, e))?;
+    let top = set.levels.last().map_or(0, |l| l.v);
+    let range = match &args.v_range {
+        Some(text) => {
+            let (a, b) = j_values(text).map_err(|_| {
+                bad_input(format!("--v-range: '{text}' is not a range such as 0-10"))
+            })?;
+            if a > top {
+                return Err(bad_input(format!(
+                    "--v-range {text}: the curve binds v = 0..{top} only"
+                )));
+            }
+            (a, b.min(top))
+        }
+        None => (0, top),
+    };
+    let fail = |e: rungs::constants::FitError| bad_input(format!("{}: {e}", setup.source));
+    let vibrational = rungs::constants::fit_vibrational(&set, range, args.order).map_err(fail)?;
+    let rotational = rungs::constants::fit_rotational(&set, range, args.rotation_order).ok();
+    let birge = rungs::constants::birge_sponer(&set, args.birge_sponer_points);
+    let table = rungs::report::tables::constants_table(
+        &vibrational,
+        rotational.as_ref(),
+        birge,
+        &setup.pair,
+        units,
+    );
+    print_table(&table, &args.output)?;
+    Ok(ExitCode::SUCCESS)
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Inspect(args) => inspect(args),
         Command::Levels(args) => levels(*args),
+        Command::Constants(args) => constants(args),
     };
     match result {
         Ok(code) => code,

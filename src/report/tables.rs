@@ -277,3 +277,77 @@ pub fn wavefunction_table(set: &LevelSet, units: DisplayUnits) -> Table {
         notes: vec!["normalised to int psi^2 dr = 1; sign: positive on the innermost lobe".into()],
     }
 }
+
+/// Fitted spectroscopic constants as (quantity, value, standard error, unit) rows.
+/// `vibrational` is the G(v) fit, `rotational` the B_v fit (see [`crate::constants`]).
+pub fn constants_table(
+    vibrational: &crate::constants::PolynomialFit,
+    rotational: Option<&crate::constants::PolynomialFit>,
+    birge_sponer: Option<f64>,
+    pair: &Pair,
+    units: DisplayUnits,
+) -> Table {
+    let eu = units.energy.name;
+    let mut rows = Vec::new();
+    let mut push = |name: &str, value: f64, error: f64| {
+        rows.push(vec![
+            Cell::Text(name.into()),
+            units.e(value),
+            units.e(error),
+            Cell::Text(eu.into()),
+        ]);
+    };
+    // G(v) = c0 + omega_e x - omega_e x_e x^2 + omega_e y_e x^3 + omega_e z_e x^4 (signs of the trade).
+    let vib_names = [
+        "G_offset",
+        "omega_e",
+        "omega_e_x_e",
+        "omega_e_y_e",
+        "omega_e_z_e",
+    ];
+    let vib_signs = [1.0, 1.0, -1.0, 1.0, 1.0];
+    for (k, (c, e)) in vibrational
+        .coefficients
+        .iter()
+        .zip(&vibrational.standard_errors)
+        .enumerate()
+    {
+        let name = vib_names
+            .get(k)
+            .map_or_else(|| format!("G_coefficient_{k}"), |n| n.to_string());
+        push(&name, vib_signs.get(k).copied().unwrap_or(1.0) * c, *e);
+    }
+    push("G_fit_rms", vibrational.rms_residual, 0.0);
+    if let Some(fit) = rotational {
+        let names = ["B_e", "alpha_e", "gamma_e"];
+        let signs = [1.0, -1.0, 1.0];
+        for (k, (c, e)) in fit
+            .coefficients
+            .iter()
+            .zip(&fit.standard_errors)
+            .enumerate()
+        {
+            let name = names
+                .get(k)
+                .map_or_else(|| format!("B_coefficient_{k}"), |n| n.to_string());
+            push(&name, signs.get(k).copied().unwrap_or(1.0) * c, *e);
+        }
+        push("B_fit_rms", fit.rms_residual, 0.0);
+    }
+    if let Some(d0) = birge_sponer {
+        push("D_0_birge_sponer", d0, 0.0);
+    }
+    Table {
+        title: format!("spectroscopic constants of {} from {} levels", pair.label(), vibrational.points),
+        columns: vec![
+            Column::new("quantity", 0),
+            Column::new("value", 8),
+            Column::new("standard_error", 3),
+            Column::new("unit", 0),
+        ],
+        rows,
+        notes: vec![
+            "G(v) = G_offset + omega_e (v+1/2) - omega_e_x_e (v+1/2)^2 + omega_e_y_e (v+1/2)^3 + ...; B_v = B_e - alpha_e (v+1/2) + gamma_e (v+1/2)^2".into(),
+        ],
+    }
+}

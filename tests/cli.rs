@@ -1,0 +1,104 @@
+//! The command line end to end on the shipped (invented) examples.
+
+use assert_cmd::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let output = Command::cargo_bin("rungs")
+        .unwrap()
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        output.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&output.stdout).to_string(),
+        String::from_utf8_lossy(&output.stderr).to_string(),
+    )
+}
+
+#[test]
+fn constants_of_the_demo_morse() {
+    // curves/demo_morse.toml is a Morse curve given by omega_e = 900 and omega_e x_e = 8.5 cm-1;
+    // for a Morse curve G(v) is exactly quadratic (Morse 1929), so the fit gives them back.
+    let (code, stdout, stderr) = run(&[
+        "constants",
+        "curves/demo_morse.toml",
+        "--v-range",
+        "0-20",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let value = |name: &str| -> f64 {
+        let line = stdout
+            .lines()
+            .find(|l| l.starts_with(&format!("{name},")))
+            .unwrap();
+        line.split(',').nth(1).unwrap().parse().unwrap()
+    };
+    assert!((value("omega_e") - 900.0).abs() < 1e-6);
+    assert!((value("omega_e_x_e") - 8.5).abs() < 1e-6);
+}
+
+#[test]
+fn levels_table_csv_and_json_carry_the_same_numbers() {
+    let (_, csv, _) = run(&[
+        "levels",
+        "curves/demo_morse.toml",
+        "--vmax",
+        "3",
+        "--format",
+        "csv",
+    ]);
+    let (_, json, _) = run(&[
+        "levels",
+        "curves/demo_morse.toml",
+        "--vmax",
+        "3",
+        "--format",
+        "json",
+    ]);
+    let json: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let first_csv: f64 = csv
+        .lines()
+        .nth(1)
+        .unwrap()
+        .split(',')
+        .nth(2)
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert_eq!(json["rows"][0]["energy_cm-1"].as_f64(), Some(first_csv));
+}
+
+#[test]
+fn wavefunctions_are_written_for_the_chosen_levels() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("psi.csv");
+    let (code, _, stderr) = run(&[
+        "levels",
+        "curves/demo_morse.toml",
+        "--wavefunctions",
+        path.to_str().unwrap(),
+        "--v",
+        "0,2",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let text = std::fs::read_to_string(&path).unwrap();
+    assert!(text.starts_with("v,r_angstrom,psi_angstrom^-1/2"));
+    let levels: std::collections::BTreeSet<&str> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').next().unwrap())
+        .collect();
+    assert_eq!(levels.into_iter().collect::<Vec<_>>(), vec!["0", "2"]);
+    // A v beyond the bound levels is refused.
+    let (code, _, stderr) = run(&[
+        "levels",
+        "curves/demo_morse.toml",
+        "--wavefunctions",
+        path.to_str().unwrap(),
+        "--v",
+        "500",
+    ]);
+    assert_eq!(code, 2, "{stderr}");
+}
