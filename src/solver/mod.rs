@@ -8,13 +8,16 @@
 //! (see [`numerov`] for why and how), and [`Method::SincDvr`], the Colbert-Miller sinc-DVR
 //! (D.T. Colbert and W.H. Miller, J. Chem. Phys. 96, 1982 (1992)) as a dense reference.
 //!
-//! The grid is chosen automatically (see [`grid`]); the user may fix its range and step. Each
+//! The grid is chosen automatically (see [`grid`]); the tails of weakly bound levels are
+//! stretched (see [`mapping`]) so a level reaching hundreds of bohr needs thousands of points,
+//! not hundreds of thousands. The user may fix the range and step (no stretch then). Each
 //! level carries its vibrational number v from the Sturm count, an error estimate and a
 //! converged flag against the tolerance; the number of bound levels is stated with the box
 //! that established it. This module knows nothing of post-processing or reports.
 
 mod dvr;
 pub mod grid;
+pub mod mapping;
 pub mod numerov;
 
 use crate::curve::{find_well_with, turning_points_with, PotentialCurve, ShapeError};
@@ -187,7 +190,8 @@ pub struct LevelSet {
     pub levels: Vec<Level>,
     pub audit: CountAudit,
     pub wavefunctions: Vec<Wavefunction>,
-    /// The finest grid used for the least-bound level.
+    /// The finest grid used for the least-bound level (uniform in the stretched coordinate x
+    /// when its tail was stretched; see [`mapping`]).
     pub finest_grid: UniformGrid,
 }
 
@@ -353,7 +357,31 @@ fn check_grid(
     grid: &UniformGrid,
     lattice: Option<&NumerovGrid>,
 ) -> Result<NumerovGrid, SolverError> {
+    check_stretched_grid(problem, facts, grid, lattice, None)
+}
+
+/// The lowest energy (relative to the curve minimum) a grid must handle.
+fn lowest_energy(facts: &WellFacts) -> f64 {
+    facts.floor - facts.curve_minimum
+}
+
+/// As [`check_grid`], on a grid uniform in the stretched coordinate x when `stretch` is given
+/// with the lowest energy (relative to the curve minimum) the grid must handle: a stretched
+/// tail is built for energies near one level, not for the bottom of the well.
+fn check_stretched_grid(
+    problem: &RadialProblem,
+    facts: &WellFacts,
+    grid: &UniformGrid,
+    lattice: Option<&NumerovGrid>,
+    stretch: Option<(&mapping::Stretch, f64)>,
+) -> Result<NumerovGrid, SolverError> {
     let floor = facts.curve_minimum;
+    if let Some((stretch, lowest)) = stretch {
+        let numerov = NumerovGrid::stretched(*grid, problem.reduced_mass, stretch, &|r| {
+            problem.effective(r) - floor
+        });
+        return validate(problem, facts, grid, numerov, lowest);
+    }
     let from_lattice = lattice.and_then(|fine| {
         let stride = (grid.step / fine.grid.step).round();
         let aligned = grid.start == fine.grid.start
@@ -368,10 +396,24 @@ fn check_grid(
             problem.effective(r) - floor
         })
     });
+    validate(problem, facts, grid, numerov, lowest_energy(facts))
+}
+
+/// Refuse a grid where V_eff is not finite or the Numerov factor 1 - h^2 Q/12 is not positive
+/// at energies from `lowest` (relative to the curve minimum) up.
+fn validate(
+    problem: &RadialProblem,
+    facts: &WellFacts,
+    grid: &UniformGrid,
+    numerov: NumerovGrid,
+    lowest: f64,
+) -> Result<NumerovGrid, SolverError> {
     if let Some(i) = numerov.first_non_finite() {
-        return Err(SolverError::NotFinite { r: grid.r(i) });
+        return Err(SolverError::NotFinite {
+            r: numerov.radius(i),
+        });
     }
-    if !numerov.factor_is_positive(facts.floor - floor) {
+    if !numerov.factor_is_positive(lowest) {
         let wall = problem.effective(grid.start) - facts.floor;
         return Err(SolverError::StepTooCoarse {
             step: grid.step,
@@ -637,8 +679,25 @@ fn solve_one(
     let mut box_growths = 0;
     let mut start = None;
     loop {
-        let solved = richardson_level(job, v, bracket, start, base.refined(1 << refinement))?;
+        let stretch = if fixed_range {
+            None
+        } else {
+            tail_stretch(problem, facts, guess, &base)
+        };
+        let coarsest = match &stretch {
+            Some(s) => covering(base.start, s.x_of(base.end()), base.step),
+            None => base,
+        };
+        let solved = richardson_level(
+            job,
+            v,
+            bracket,
+            start,
+            coarsest.refined(1 << refinement),
+            stretch.as_ref(),
+        )?;
         start = Some(solved.level.energy - floor);
+        guess = solved.level.energy;
         // The box must also hold the converged level's tail (its first size came from a guess).
         if !fixed_range && base.end() < cap && box_growths < 4 {
             let needed = grid::outer_bound(
@@ -663,12 +722,47 @@ fn solve_one(
 
 /// Level v on grids with steps h, h/2, h/4 over `coarsest`'s range, Richardson-extrapolated.
 /// `start` (relative to the curve minimum) seeds the first grid when a nearby value is known.
+/// Points per decay length 1/kappa in a stretched tail on the coarsest grid.
+const TAIL_POINTS_PER_DECAY_LENGTH: f64 = 4.0;
+
+/// The stretch for a level at `energy` in the box `base`: none for a level whose tail is short
+/// (its decay length is already resolved by a few plain steps); otherwise plain steps up to
+/// two decay lengths past the outer turning point, then steps growing to 1/4 of the
+/// asymptotic decay length 1/kappa, kappa = sqrt(2 mu (limit - E)).
+fn tail_stretch(
+    problem: &RadialProblem,
+    facts: &WellFacts,
+    energy: f64,
+    base: &UniformGrid,
+) -> Option<mapping::Stretch> {
+    let limit = problem.curve.limit()?;
+    let kappa = (2.0 * problem.reduced_mass * (limit - energy)).sqrt();
+    if kappa.is_nan() || kappa <= 0.0 {
+        return None;
+    }
+    let gain = 1.0 / (TAIL_POINTS_PER_DECAY_LENGTH * kappa * base.step);
+    if gain < 16.0 {
+        return None;
+    }
+    let (_, outer) = turning(problem, facts, energy, base.end());
+    let onset = outer + 2.0 / kappa;
+    // Narrow enough that at the turning point the steps have grown by less than 10%:
+    // (g - 1) exp(-(onset - outer)/w) <= 0.1.
+    let width = 2.0 / (kappa * (10.0 * gain).ln());
+    (onset + 4.0 / kappa < base.end() && width > 8.0 * base.step).then_some(mapping::Stretch {
+        onset,
+        width,
+        gain,
+    })
+}
+
 fn richardson_level(
     job: &Job,
     v: usize,
     bracket: (f64, f64),
     start: Option<f64>,
     coarsest: UniformGrid,
+    stretch: Option<&mapping::Stretch>,
 ) -> Result<Solved, SolverError> {
     let (problem, settings, facts) = (job.problem, job.settings, job.facts);
     let lattice = &job.counting.lattice;
@@ -680,7 +774,8 @@ fn richardson_level(
     let mut last = None;
     let (mut lo, mut hi) = bracket;
     for (k, g) in grids.iter().enumerate() {
-        let numerov = check_grid(problem, facts, g, Some(lattice))?;
+        let numerov =
+            check_stretched_grid(problem, facts, g, Some(lattice), stretch.map(|s| (s, lo)))?;
         let seed = if k == 0 { start } else { Some(energies[k - 1]) };
         let level = numerov
             .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
@@ -689,18 +784,23 @@ fn richardson_level(
                 grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
             })?;
         energies[k] = level.energy;
-        (mean_r[k], mean_inv[k]) = expectations(g, &level.psi);
+        (mean_r[k], mean_inv[k]) = numerov.expectations(&level.phi);
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         (lo, hi) = (level.energy - shift, level.energy + shift);
-        last = Some((level, *g));
+        last = Some((level, numerov));
     }
     let (energy, error_estimate) = richardson(energies);
     let (r_avg, _) = richardson(mean_r);
     let (inv_r2, _) = richardson(mean_inv);
     let (level, finest) = last.expect("three grids solved");
     let absolute = energy + floor;
-    let (inner, outer) = turning(problem, facts, absolute, 10.0 * finest.end());
+    let (inner, outer) = turning(
+        problem,
+        facts,
+        absolute,
+        10.0 * finest.radius(finest.grid.intervals),
+    );
     Ok(Solved {
         level: Level {
             v: v as u32,
@@ -714,12 +814,15 @@ fn richardson_level(
             mean_inverse_r2: inv_r2,
             rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
         },
-        wavefunction: settings.keep_wavefunctions.then(|| Wavefunction {
-            v: v as u32,
-            r: (0..=finest.intervals).map(|i| finest.r(i)).collect(),
-            psi: level.psi,
+        wavefunction: settings.keep_wavefunctions.then(|| {
+            let (r, psi) = finest.wavefunction(&level.phi);
+            Wavefunction {
+                v: v as u32,
+                r,
+                psi,
+            }
         }),
-        grid: finest,
+        grid: finest.grid,
     })
 }
 

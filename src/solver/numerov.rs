@@ -28,12 +28,18 @@
 
 use super::grid::UniformGrid;
 
-/// Numerov data for one grid: 2 mu V_eff at every point (energies relative to the well floor).
+/// Numerov data for one grid, uniform in x: Q_i(E) = w_i - c_i E, with w = 2 mu V_eff and
+/// c = 2 mu on a plain grid (r = x), or w = r'^2 2 mu V_eff(r(x)) + F(x) and c = 2 mu r'^2 on
+/// a stretched one (see [`super::mapping`]). Energies are relative to the well floor.
 #[derive(Debug, Clone)]
 pub struct NumerovGrid {
     pub grid: UniformGrid,
-    /// 2 mu V_eff(r_i), i = 0 ..= intervals, hartree * m_e.
+    /// w_i, i = 0 ..= intervals.
     twice_mu_v: Vec<f64>,
+    /// c_i, the coefficient of E in Q_i, on a stretched grid (None: c_i = 2 mu).
+    energy_weight: Option<Vec<f64>>,
+    /// r_i where the grid is stretched (None: r_i = x_i).
+    radius: Option<Vec<f64>>,
     reduced_mass: f64,
 }
 
@@ -41,15 +47,15 @@ pub struct NumerovGrid {
 #[derive(Debug, Clone)]
 pub struct GridLevel {
     pub energy: f64,
-    /// psi at the grid points (ends included, both zero), normalised so that h sum psi^2 = 1,
-    /// positive on its innermost lobe.
-    pub psi: Vec<f64>,
+    /// phi at the grid points (ends included, both zero), normalised so that
+    /// h sum r'_i^2 phi_i^2 = 1 (int psi^2 dr = 1), positive on its innermost lobe.
+    pub phi: Vec<f64>,
     /// Cooley iterations used.
     pub iterations: usize,
 }
 
 impl NumerovGrid {
-    /// Tabulate 2 mu V_eff on the grid. `potential` gives V_eff (relative to the well floor).
+    /// Tabulate 2 mu V_eff on a plain grid. `potential` gives V_eff (relative to the well floor).
     pub fn new(
         grid: UniformGrid,
         reduced_mass: f64,
@@ -58,27 +64,56 @@ impl NumerovGrid {
         let twice_mu_v = (0..=grid.intervals)
             .map(|i| 2.0 * reduced_mass * potential(grid.r(i)))
             .collect();
+        NumerovGrid::from_values(grid, reduced_mass, twice_mu_v)
+    }
+
+    /// Tabulate the stretched problem on a grid uniform in x.
+    pub fn stretched(
+        grid: UniformGrid,
+        reduced_mass: f64,
+        stretch: &super::mapping::Stretch,
+        potential: &dyn Fn(f64) -> f64,
+    ) -> NumerovGrid {
+        let n = grid.intervals + 1;
+        let (mut w, mut c, mut radius) = (
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+        );
+        for i in 0..n {
+            let x = grid.r(i);
+            let r = stretch.r(x);
+            let slope = stretch.derivatives(x).0;
+            let s = slope * slope;
+            w.push(s * 2.0 * reduced_mass * potential(r) + stretch.schwarzian_term(x));
+            c.push(2.0 * reduced_mass * s);
+            radius.push(r);
+        }
         NumerovGrid {
             grid,
-            twice_mu_v,
+            twice_mu_v: w,
+            energy_weight: Some(c),
+            radius: Some(radius),
             reduced_mass,
         }
     }
 
-    /// From values 2 mu V_eff already tabulated at the grid's points.
+    /// From values 2 mu V_eff already tabulated at the points of a plain grid.
     pub fn from_values(grid: UniformGrid, reduced_mass: f64, twice_mu_v: Vec<f64>) -> NumerovGrid {
         debug_assert_eq!(twice_mu_v.len(), grid.intervals + 1);
         NumerovGrid {
             grid,
+            energy_weight: None,
             twice_mu_v,
+            radius: None,
             reduced_mass,
         }
     }
 
     /// The values at every `stride`-th point, up to `intervals` strides: the same potential on
-    /// a coarser grid sharing this grid's start.
+    /// a coarser grid sharing this grid's start (plain grids only).
     pub fn subsample(&self, stride: usize, intervals: usize) -> Option<NumerovGrid> {
-        if stride == 0 || intervals * stride > self.grid.intervals {
+        if stride == 0 || intervals * stride > self.grid.intervals || self.radius.is_some() {
             return None;
         }
         let grid = UniformGrid {
@@ -96,6 +131,43 @@ impl NumerovGrid {
         Some(NumerovGrid::from_values(grid, self.reduced_mass, values))
     }
 
+    /// r at grid point i, bohr.
+    pub fn radius(&self, i: usize) -> f64 {
+        self.radius
+            .as_ref()
+            .map_or_else(|| self.grid.r(i), |r| r[i])
+    }
+
+    /// The weight r'^2 at point i (1 on a plain grid).
+    fn stretch_weight(&self, i: usize) -> f64 {
+        self.energy_weight
+            .as_ref()
+            .map_or(1.0, |c| c[i] / (2.0 * self.reduced_mass))
+    }
+
+    /// <r> and <r^-2> of a normalised phi (h sum r'^2 phi^2 g(r)).
+    pub fn expectations(&self, phi: &[f64]) -> (f64, f64) {
+        let (mut mean_r, mut mean_inv) = (0.0, 0.0);
+        for (i, p) in phi.iter().enumerate() {
+            let r = self.radius(i);
+            let weight = p * p * self.stretch_weight(i) * self.grid.step;
+            mean_r += weight * r;
+            mean_inv += weight / (r * r);
+        }
+        (mean_r, mean_inv)
+    }
+
+    /// The wavefunction psi(r_i) = sqrt(r'_i) phi_i with its r_i.
+    pub fn wavefunction(&self, phi: &[f64]) -> (Vec<f64>, Vec<f64>) {
+        let r = (0..phi.len()).map(|i| self.radius(i)).collect();
+        let psi = phi
+            .iter()
+            .enumerate()
+            .map(|(i, p)| p * self.stretch_weight(i).sqrt().sqrt())
+            .collect();
+        (r, psi)
+    }
+
     /// Index of the first grid point where V_eff is not finite, if any.
     pub fn first_non_finite(&self) -> Option<usize> {
         self.twice_mu_v.iter().position(|w| !w.is_finite())
@@ -104,8 +176,11 @@ impl NumerovGrid {
     /// True when 1 - h^2 Q / 12 > 0 at every point for energies at or above `energy`.
     pub fn factor_is_positive(&self, energy: f64) -> bool {
         let h2 = self.grid.step * self.grid.step;
-        let e2 = 2.0 * self.reduced_mass * energy;
-        self.twice_mu_v.iter().all(|&w| h2 * (w - e2) / 12.0 < 1.0)
+        let two_mu = 2.0 * self.reduced_mass;
+        (0..self.twice_mu_v.len()).all(|i| {
+            let c = self.energy_weight.as_ref().map_or(two_mu, |c| c[i]);
+            h2 * (self.twice_mu_v[i] - c * energy) / 12.0 < 1.0
+        })
     }
 
     /// Number of discrete levels below `energy`: negative pivots of LDL^T of A(E).
@@ -115,18 +190,25 @@ impl NumerovGrid {
     /// P_i = (2 f_i + h^2 Q_i) P_{i-1} - f_i f_{i-1} P_{i-2}, with the same signs and no
     /// division; a pivot is negative where P changes sign. P is rescaled before it can overflow.
     pub fn count_below(&self, energy: f64) -> usize {
+        let two_mu = 2.0 * self.reduced_mass;
+        match &self.energy_weight {
+            None => self.count_with(energy, |_| two_mu),
+            Some(c) => self.count_with(energy, |i| c[i]),
+        }
+    }
+
+    fn count_with(&self, energy: f64, weight: impl Fn(usize) -> f64) -> usize {
         let n = self.grid.intervals;
         if n < 2 {
             return 0;
         }
         let h2 = self.grid.step * self.grid.step;
         let h2_12 = h2 / 12.0;
-        let e2 = 2.0 * self.reduced_mass * energy;
         let mut count = 0;
         let (mut previous, mut current) = (1.0f64, 1.0f64);
         let mut factor_before = 1.0;
         for i in 1..n {
-            let q = self.twice_mu_v[i] - e2;
+            let q = self.twice_mu_v[i] - weight(i) * energy;
             let factor = 1.0 - h2_12 * q;
             let mut next = (2.0 * factor + h2 * q) * current
                 - if i == 1 {
@@ -156,21 +238,28 @@ impl NumerovGrid {
     /// Shoot at `energy`: returns psi (unnormalised, matched at the outer turning point) and
     /// Cooley's energy correction.
     fn shoot(&self, energy: f64) -> (Vec<f64>, f64) {
+        let two_mu = 2.0 * self.reduced_mass;
+        match &self.energy_weight {
+            None => self.shoot_with(energy, |_| two_mu),
+            Some(c) => self.shoot_with(energy, |i| c[i]),
+        }
+    }
+
+    fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> (Vec<f64>, f64) {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
         let h2_12 = h2 / 12.0;
-        let e2 = 2.0 * self.reduced_mass * energy;
         let w = &self.twice_mu_v;
         // a_i and 1/f_i at point i.
         let diagonal = |i: usize| {
-            let q = w[i] - e2;
+            let q = w[i] - c(i) * energy;
             let inverse_factor = 1.0 / (1.0 - h2_12 * q);
             (2.0 + h2 * q * inverse_factor, inverse_factor)
         };
         // Matching point: the outermost point inside the classically allowed region.
         let m = (1..n)
             .rev()
-            .find(|&i| w[i] < e2)
+            .find(|&i| w[i] < c(i) * energy)
             .unwrap_or(n / 2)
             .clamp(2.min(n - 1), (n - 2).max(1));
         const TINY: f64 = 1e-30;
@@ -202,9 +291,10 @@ impl NumerovGrid {
         let mut norm = 0.0;
         for (i, value) in y.iter_mut().enumerate().take(n).skip(1) {
             *value *= diagonal(i).1;
-            norm += *value * *value;
+            norm += c(i) * *value * *value;
         }
-        let correction = y[m] * defect / (2.0 * self.reduced_mass * h2 * norm);
+        // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
+        let correction = y[m] * defect / (h2 * norm);
         (y, correction)
     }
 
@@ -245,7 +335,7 @@ impl NumerovGrid {
                     && self.count_below(energy + margin) == v + 1;
                 return confirmed.then(|| GridLevel {
                     energy,
-                    psi: normalise(psi, self.grid.step),
+                    phi: self.normalise(psi),
                     iterations,
                 });
             }
@@ -309,7 +399,7 @@ impl NumerovGrid {
                     } else {
                         energy
                     },
-                    psi: normalise(psi, self.grid.step),
+                    phi: self.normalise(psi),
                     iterations,
                 });
             }
@@ -327,17 +417,25 @@ impl NumerovGrid {
     }
 }
 
-/// Normalise so that h sum psi^2 = 1 and make the innermost lobe positive.
-fn normalise(mut psi: Vec<f64>, step: f64) -> Vec<f64> {
-    let norm = (step * psi.iter().map(|p| p * p).sum::<f64>()).sqrt();
-    let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
-    let first_lobe_sign = psi
-        .iter()
-        .find(|p| p.abs() > 1e-3 * peak)
-        .map_or(1.0, |p| p.signum());
-    let scale = first_lobe_sign / norm;
-    psi.iter_mut().for_each(|p| *p *= scale);
-    psi
+impl NumerovGrid {
+    /// Normalise so that h sum r'^2 phi^2 = 1 and make the innermost lobe positive.
+    fn normalise(&self, mut psi: Vec<f64>) -> Vec<f64> {
+        let norm = (self.grid.step
+            * psi
+                .iter()
+                .enumerate()
+                .map(|(i, p)| p * p * self.stretch_weight(i))
+                .sum::<f64>())
+        .sqrt();
+        let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
+        let first_lobe_sign = psi
+            .iter()
+            .find(|p| p.abs() > 1e-3 * peak)
+            .map_or(1.0, |p| p.signum());
+        let scale = first_lobe_sign / norm;
+        psi.iter_mut().for_each(|p| *p *= scale);
+        psi
+    }
 }
 
 /// Richardson extrapolation of values at steps h, h/2, h/4 for an error series in h^4, h^6:
@@ -367,7 +465,7 @@ mod tests {
         assert_eq!(numerov.count_below(3.6), 4);
         let level = numerov.solve_level(2, 0.0, 10.0, None, 1e-14).unwrap();
         assert!((level.energy - 2.5).abs() < 1e-6, "{}", level.energy);
-        assert!(level.psi.iter().take(400).all(|p| *p >= -1e-12));
+        assert!(level.phi.iter().take(400).all(|p| *p >= -1e-12));
     }
 
     #[test]
