@@ -46,6 +46,11 @@ enum Command {
         after_help = "Examples:\n  rungs constants curves/demo_morse.toml\n  rungs constants curves/h2_born_oppenheimer.toml --v-range 0-5 --order 3 --format json"
     )]
     Constants(ConstantsArgs),
+    /// Computed against measured levels: obs - calc for each (v, J), RMS and weighted deviation.
+    #[command(
+        after_help = "Examples:\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv --energy-zero lowest --format csv"
+    )]
+    Compare(CompareArgs),
 }
 
 #[derive(Args)]
@@ -155,6 +160,21 @@ struct ConstantsArgs {
     /// Spacings at the top used for the Birge-Sponer line.
     #[arg(long, default_value_t = 5)]
     birge_sponer_points: usize,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+#[derive(Args)]
+struct CompareArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// Measured levels (CSV: v,J,energy_<unit>,uncertainty_<unit>[,tag]).
+    #[arg(long)]
+    measured: PathBuf,
+    /// The zero of the measured energies: lowest (v = 0 of the lowest J: term values),
+    /// minimum (the curve minimum) or limit (the dissociation limit).
+    #[arg(long, default_value = "lowest", value_parser = ["lowest", "minimum", "limit"])]
+    energy_zero: String,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -421,12 +441,50 @@ fn constants(args: ConstantsArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
+fn compare(args: CompareArgs) -> Result<ExitCode> {
+    use rungs::compare::EnergyZero;
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let name = args.measured.display().to_string();
+    let text = std::fs::read_to_string(&args.measured)
+        .map_err(|e| bad_input(format!("{name}: cannot read: {e}")))?;
+    let measured =
+        rungs::reader::parse_measured(&text, &name).map_err(|e| bad_input(e.to_string()))?;
+    let zero = match args.energy_zero.as_str() {
+        "minimum" => EnergyZero::CurveMinimum,
+        "limit" => EnergyZero::DissociationLimit,
+        _ => EnergyZero::LowestLevel,
+    };
+    let mut js: Vec<u32> = measured.iter().map(|m| m.j).chain([0]).collect();
+    js.sort_unstable();
+    js.dedup();
+    let mu = setup.pair.reduced_mass();
+    let settings = SolverSettings::default();
+    let mut sets = Vec::new();
+    for j in js {
+        match solver::solve(&RadialProblem::new(setup.curve.as_ref(), mu, j), &settings) {
+            Ok(set) => sets.push(set),
+            // Measured levels at this J will be listed as unassigned.
+            Err(SolverError::NothingBound { .. }) => {}
+            Err(e) => return Err(solver_failure(&setup.source, e)),
+        }
+    }
+    let comparison = rungs::compare::compare(&measured, &sets, zero)
+        .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
+    print_table(
+        &rungs::report::tables::comparison_table(&comparison, &setup.pair, units),
+        &args.output,
+    )?;
+    Ok(ExitCode::SUCCESS)
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Inspect(args) => inspect(args),
         Command::Levels(args) => levels(*args),
         Command::Constants(args) => constants(args),
+        Command::Compare(args) => compare(args),
     };
     match result {
         Ok(code) => code,

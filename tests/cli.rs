@@ -102,3 +102,29 @@ fn wavefunctions_are_written_for_the_chosen_levels() {
     ]);
     assert_eq!(code, 2, "{stderr}");
 }
+
+#[test]
+fn bad_measured_files_are_refused_with_their_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let write = |name: &str, text: &str| {
+        let path = dir.path().join(name);
+        std::fs::write(&path, text).unwrap();
+        path.to_str().unwrap().to_string()
+    };
+    let duplicate = write(
+        "dup.csv",
+        "v,J,energy_cm-1,uncertainty_cm-1\n0,0,0,0.01\n1,0,883,0.01\n1,0,884,0.01\n",
+    );
+    let no_unit = write("nounit.csv", "v,J,energy,uncertainty\n0,0,0,0.01\n");
+    let zero_uncertainty = write("zero.csv", "v,J,energy_cm-1,uncertainty_cm-1\n0,0,0,0\n");
+    for (file, expected) in [
+        (&duplicate, "lines 3 and 4"),
+        (&no_unit, "line 1"),
+        (&zero_uncertainty, "must be positive"),
+    ] {
+        let (code, _, stderr) = run(&["compare", "curves/demo_morse.toml", "--measured", file]);
+        assert_eq!(code, 2, "{stderr}");
+        assert!(stderr.contains(expected), "{stderr}");
+        assert!(!stderr.contains("panicked"));
+    }
+}

@@ -33,8 +33,10 @@
 //!   with `form` (`inverse-power` default, or `exponential`), `powers` (default `[6]`) and
 //!   optionally `coefficients_au` (C_n in hartree bohr^n; fitted when absent).
 
+mod measured;
 mod points;
 
+pub use measured::{parse_measured, MeasuredLevel};
 pub use points::{parse_points, PointTable};
 
 use crate::curve::{

@@ -351,3 +351,59 @@ pub fn constants_table(
         ],
     }
 }
+
+/// Residuals obs - calc, one row per measured level; unassigned levels and the statistics go
+/// into the notes (nothing is dropped silently).
+pub fn comparison_table(
+    comparison: &crate::compare::Comparison,
+    pair: &Pair,
+    units: DisplayUnits,
+) -> Table {
+    let eu = units.energy.name;
+    let rows = comparison
+        .residuals
+        .iter()
+        .map(|r| {
+            vec![
+                Cell::Integer(r.measured.v.into()),
+                Cell::Integer(r.measured.j.into()),
+                r.measured.tag.clone().map_or(Cell::Missing, Cell::Text),
+                units.e(r.measured.energy),
+                units.e(r.computed),
+                units.e(r.obs_minus_calc),
+                units.e(r.measured.uncertainty),
+                Cell::Number(r.normalised),
+            ]
+        })
+        .collect();
+    let mut notes = vec![
+        format!(
+            "{} matched levels: rms(obs - calc) = {:.6e} {eu}, weighted deviation sqrt(mean(((obs - calc)/u)^2)) = {:.4}",
+            comparison.residuals.len(),
+            units.energy.from_atomic(comparison.rms),
+            comparison.weighted_deviation
+        ),
+        format!("{} computed levels in the measured J values have no measurement", comparison.computed_not_measured),
+    ];
+    for level in &comparison.unassigned {
+        notes.push(format!(
+            "UNASSIGNED: measured (v, J) = ({}, {}) on line {} has no computed level (not bound on this curve?)",
+            level.v, level.j, level.line
+        ));
+    }
+    Table {
+        title: format!("measured against computed levels of {}", pair.label()),
+        columns: vec![
+            Column::new("v", 0),
+            Column::new("J", 0),
+            Column::new("tag", 0),
+            Column::new(format!("observed_{eu}"), 6),
+            Column::new(format!("calculated_{eu}"), 6),
+            Column::new(format!("obs_minus_calc_{eu}"), 6),
+            Column::new(format!("uncertainty_{eu}"), 6),
+            Column::new("normalised_residual", 3),
+        ],
+        rows,
+        notes,
+    }
+}
