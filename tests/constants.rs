@@ -73,3 +73,33 @@ fn spacings_and_birge_sponer_of_a_morse() {
     let last_spacing = *first.last().unwrap();
     assert!((d0 - exact).abs() < last_spacing, "{d0} vs {exact}");
 }
+
+#[test]
+fn centrifugal_distortion_by_perturbation_theory() {
+    // D_v from Hutson's perturbation theory (J. Phys. B 14, 851 (1981)) against
+    // (a) finite differences: a cubic fit of E(J) = E + B l - D l^2 + H l^3, l = J(J+1),
+    //     J = 0..5, to 1e-4 relative (the fit neglects the l^4 term; common practice);
+    // (b) the Kratzer relation D_e = 4 B_e^3 / omega_e^2 (Herzberg 1950) for v = 0, to its
+    //     own order, a relative difference below alpha_e / B_e (recalled from memory).
+    let (morse, mu) = common::hcl_morse();
+    let settings = SolverSettings::default().with_highest_v(Some(2));
+    let sets: Vec<_> = (0..6)
+        .map(|j| solve(&RadialProblem::new(&morse, mu, j), &settings).unwrap())
+        .collect();
+    let lambda: Vec<f64> = (0..6u32).map(|j| f64::from(j * (j + 1))).collect();
+    for v in 0..3 {
+        let energies: Vec<f64> = sets.iter().map(|s| s.levels[v].energy).collect();
+        let fit = rungs::constants::polynomial_fit(&lambda, &energies, 3).unwrap();
+        let perturbative = sets[0].levels[v].centrifugal_distortion;
+        assert!(
+            ((perturbative + fit.coefficients[2]) / perturbative).abs() < 1e-4,
+            "v={v}"
+        );
+    }
+    let (we, wexe) = (morse.omega_e(mu), morse.omega_e_x_e(mu));
+    let b_e = 1.0 / (2.0 * mu * morse.r_e * morse.r_e);
+    let kratzer = 4.0 * b_e.powi(3) / (we * we);
+    let alpha = 6.0 * (wexe * b_e.powi(3)).sqrt() / we - 6.0 * b_e * b_e / we;
+    let d0 = sets[0].levels[0].centrifugal_distortion;
+    assert!(((d0 - kratzer) / kratzer).abs() < alpha / b_e);
+}

@@ -165,6 +165,7 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
         Column::new(format!("mean_r_{lu}"), 5),
         Column::new(format!("mean_r-2_{lu}-2"), 6),
         Column::new(format!("B_v_{eu}"), 6),
+        Column::new(format!("D_v_{eu}"), 4),
         Column::new(format!("error_{eu}"), 1),
         Column::new("converged", 0),
     ];
@@ -188,6 +189,11 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
                 units.l(level.mean_r),
                 Cell::Number(level.mean_inverse_r2 / units.length.from_atomic(1.0).powi(2)),
                 units.e(level.rotational_constant),
+                if level.centrifugal_distortion.is_nan() {
+                    Cell::Missing
+                } else {
+                    units.e(level.centrifugal_distortion)
+                },
                 units.e(level.error_estimate),
                 Cell::Flag(level.converged),
             ]);

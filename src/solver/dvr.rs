@@ -131,6 +131,7 @@ pub(super) fn solve_dvr(
             mean_r,
             mean_inverse_r2,
             rotational_constant: mean_inverse_r2 / (2.0 * problem.reduced_mass),
+            centrifugal_distortion: f64::NAN,
         });
         if settings.keep_wavefunctions {
             wavefunctions.push(Wavefunction {

@@ -150,6 +150,9 @@ pub struct Level {
     pub mean_inverse_r2: f64,
     /// B_v = <1/(2 mu r^2)>, hartree.
     pub rotational_constant: f64,
+    /// D_v, the centrifugal distortion constant (E = ... + B_v J(J+1) - D_v [J(J+1)]^2), hartree,
+    /// by perturbation theory (Hutson 1981) about the J solved; NaN from the sinc-DVR reference.
+    pub centrifugal_distortion: f64,
 }
 
 /// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe.
@@ -771,6 +774,7 @@ fn richardson_level(
     let mut energies = [0.0; 3];
     let mut mean_r = [0.0; 3];
     let mut mean_inv = [0.0; 3];
+    let mut distortion = [0.0; 3];
     let mut last = None;
     let (mut lo, mut hi) = bracket;
     for (k, g) in grids.iter().enumerate() {
@@ -785,6 +789,7 @@ fn richardson_level(
             })?;
         energies[k] = level.energy;
         (mean_r[k], mean_inv[k]) = numerov.expectations(&level.phi);
+        distortion[k] = numerov.rotational_constants(level.energy, &level.phi).1;
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         (lo, hi) = (level.energy - shift, level.energy + shift);
@@ -793,6 +798,7 @@ fn richardson_level(
     let (energy, error_estimate) = richardson(energies);
     let (r_avg, _) = richardson(mean_r);
     let (inv_r2, _) = richardson(mean_inv);
+    let (centrifugal_distortion, _) = richardson(distortion);
     let (level, finest) = last.expect("three grids solved");
     let absolute = energy + floor;
     let (inner, outer) = turning(
@@ -813,6 +819,7 @@ fn richardson_level(
             mean_r: r_avg,
             mean_inverse_r2: inv_r2,
             rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
+            centrifugal_distortion,
         },
         wavefunction: settings.keep_wavefunctions.then(|| {
             let (r, psi) = finest.wavefunction(&level.phi);

@@ -298,6 +298,72 @@ impl NumerovGrid {
         (y, correction)
     }
 
+    /// The centrifugal distortion constant D = -E2 of a level by first-order perturbation
+    /// theory in lambda = J(J+1) (J.M. Hutson, J. Phys. B 14, 851 (1981)): with
+    /// V' = 1/(2 mu r^2) and B = <V'>, solve (H - E) psi1 = (B - V') psi0 with psi1 orthogonal
+    /// to psi0, then E2 = <psi0| V' - B |psi1>. The inhomogeneous equation is integrated with
+    /// Numerov's scheme for phi'' = Q phi + S, S = -c (B - V') phi0 (Y = f phi - h^2 S/12,
+    /// Y_{i+1} = 2 Y_i - Y_{i-1} + h^2 (Q_i phi_i + S_i)), outward and inward from zero, the two
+    /// particular solutions joined at the largest |phi0| by adding a multiple of phi0.
+    /// `phi` is the normalised level on this grid at `energy`. Returns (B, D), hartree.
+    pub fn rotational_constants(&self, energy: f64, phi: &[f64]) -> (f64, f64) {
+        let n = self.grid.intervals;
+        let h = self.grid.step;
+        let h2 = h * h;
+        let two_mu = 2.0 * self.reduced_mass;
+        let c = |i: usize| self.energy_weight.as_ref().map_or(two_mu, |c| c[i]);
+        let rotation = |i: usize| 1.0 / (two_mu * self.radius(i).powi(2));
+        // <f> = h sum (c_i / 2 mu) phi_i f_i g_i
+        let inner = |f: &dyn Fn(usize) -> f64, g: &[f64]| -> f64 {
+            (1..n)
+                .map(|i| h * c(i) / two_mu * phi[i] * f(i) * g[i])
+                .sum()
+        };
+        let b = inner(&rotation, phi);
+        let q = |i: usize| self.twice_mu_v[i] - c(i) * energy;
+        let source = |i: usize| -c(i) * (b - rotation(i)) * phi[i];
+        let m = (1..n)
+            .max_by(|&i, &j| phi[i].abs().total_cmp(&phi[j].abs()))
+            .unwrap_or(n / 2);
+        // Y from phi at point i.
+        let factor_y =
+            |value: f64, i: usize| (1.0 - h2 * q(i) / 12.0) * value - h2 * source(i) / 12.0;
+        // Outward particular solution up to m, inward one down to m.
+        let mut outward = vec![0.0; n + 1];
+        let mut y_prev = factor_y(0.0, 0);
+        let mut y_curr = factor_y(0.0, 1);
+        for i in 1..m {
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q(i) * outward[i] + source(i));
+            outward[i + 1] = (y_next + h2 * source(i + 1) / 12.0) / (1.0 - h2 * q(i + 1) / 12.0);
+            (y_prev, y_curr) = (y_curr, y_next);
+        }
+        let mut inward = vec![0.0; n + 1];
+        let mut y_prev = factor_y(0.0, n);
+        let mut y_curr = factor_y(0.0, n - 1);
+        for i in (m + 1..n).rev() {
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q(i) * inward[i] + source(i));
+            inward[i - 1] = (y_next + h2 * source(i - 1) / 12.0) / (1.0 - h2 * q(i - 1) / 12.0);
+            (y_prev, y_curr) = (y_curr, y_next);
+        }
+        let shift = (outward[m] - inward[m]) / phi[m];
+        let mut response: Vec<f64> = (0..=n)
+            .map(|i| {
+                if i <= m {
+                    outward[i]
+                } else {
+                    inward[i] + shift * phi[i]
+                }
+            })
+            .collect();
+        let overlap = inner(&|_| 1.0, &response);
+        response
+            .iter_mut()
+            .zip(phi)
+            .for_each(|(r, p)| *r -= overlap * p);
+        let second_order = inner(&|i| rotation(i) - b, &response);
+        (b, -second_order)
+    }
+
     /// Solve discrete level `v`. With a `start` energy close to the level (from a coarser
     /// grid), Cooley steps run from it and the result is accepted only if the Sturm count
     /// confirms it is level v; otherwise, and without a start, the bracket (lo, hi) is widened
