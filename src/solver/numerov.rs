@@ -311,38 +311,45 @@ impl NumerovGrid {
         let h = self.grid.step;
         let h2 = h * h;
         let two_mu = 2.0 * self.reduced_mass;
-        let c = |i: usize| self.energy_weight.as_ref().map_or(two_mu, |c| c[i]);
-        let rotation = |i: usize| 1.0 / (two_mu * self.radius(i).powi(2));
-        // <f> = h sum (c_i / 2 mu) phi_i f_i g_i
-        let inner = |f: &dyn Fn(usize) -> f64, g: &[f64]| -> f64 {
-            (1..n)
-                .map(|i| h * c(i) / two_mu * phi[i] * f(i) * g[i])
-                .sum()
-        };
-        let b = inner(&rotation, phi);
-        let q = |i: usize| self.twice_mu_v[i] - c(i) * energy;
-        let source = |i: usize| -c(i) * (b - rotation(i)) * phi[i];
+        // Per point: the weight c_i, V'_i = 1/(2 mu r_i^2), Q_i and the Numerov factor f_i.
+        let c: Vec<f64> = (0..=n)
+            .map(|i| self.energy_weight.as_ref().map_or(two_mu, |c| c[i]))
+            .collect();
+        let rotation: Vec<f64> = (0..=n)
+            .map(|i| 1.0 / (two_mu * self.radius(i).powi(2)))
+            .collect();
+        let q: Vec<f64> = (0..=n)
+            .map(|i| self.twice_mu_v[i] - c[i] * energy)
+            .collect();
+        let factor: Vec<f64> = q.iter().map(|q| 1.0 - h2 * q / 12.0).collect();
+        // <f g> = h sum (c_i / 2 mu) f_i g_i
+        let inner =
+            |f: &[f64], g: &[f64]| -> f64 { (1..n).map(|i| h * c[i] / two_mu * f[i] * g[i]).sum() };
+        let b = (1..n)
+            .map(|i| h * c[i] / two_mu * phi[i] * phi[i] * rotation[i])
+            .sum::<f64>();
+        let source: Vec<f64> = (0..=n)
+            .map(|i| -c[i] * (b - rotation[i]) * phi[i])
+            .collect();
         let m = (1..n)
             .max_by(|&i, &j| phi[i].abs().total_cmp(&phi[j].abs()))
             .unwrap_or(n / 2);
         // Y from phi at point i.
-        let factor_y =
-            |value: f64, i: usize| (1.0 - h2 * q(i) / 12.0) * value - h2 * source(i) / 12.0;
-        // Outward particular solution up to m, inward one down to m.
+        let to_y = |value: f64, i: usize| factor[i] * value - h2 * source[i] / 12.0;
+        let from_y = |y: f64, i: usize| (y + h2 * source[i] / 12.0) / factor[i];
+        // Outward particular solution up to m, inward one down to m, both from zero values.
         let mut outward = vec![0.0; n + 1];
-        let mut y_prev = factor_y(0.0, 0);
-        let mut y_curr = factor_y(0.0, 1);
+        let (mut y_prev, mut y_curr) = (to_y(0.0, 0), to_y(0.0, 1));
         for i in 1..m {
-            let y_next = 2.0 * y_curr - y_prev + h2 * (q(i) * outward[i] + source(i));
-            outward[i + 1] = (y_next + h2 * source(i + 1) / 12.0) / (1.0 - h2 * q(i + 1) / 12.0);
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * outward[i] + source[i]);
+            outward[i + 1] = from_y(y_next, i + 1);
             (y_prev, y_curr) = (y_curr, y_next);
         }
         let mut inward = vec![0.0; n + 1];
-        let mut y_prev = factor_y(0.0, n);
-        let mut y_curr = factor_y(0.0, n - 1);
+        let (mut y_prev, mut y_curr) = (to_y(0.0, n), to_y(0.0, n - 1));
         for i in (m + 1..n).rev() {
-            let y_next = 2.0 * y_curr - y_prev + h2 * (q(i) * inward[i] + source(i));
-            inward[i - 1] = (y_next + h2 * source(i - 1) / 12.0) / (1.0 - h2 * q(i - 1) / 12.0);
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * inward[i] + source[i]);
+            inward[i - 1] = from_y(y_next, i - 1);
             (y_prev, y_curr) = (y_curr, y_next);
         }
         let shift = (outward[m] - inward[m]) / phi[m];
@@ -355,13 +362,13 @@ impl NumerovGrid {
                 }
             })
             .collect();
-        let overlap = inner(&|_| 1.0, &response);
+        let overlap = inner(phi, &response);
         response
             .iter_mut()
             .zip(phi)
             .for_each(|(r, p)| *r -= overlap * p);
-        let second_order = inner(&|i| rotation(i) - b, &response);
-        (b, -second_order)
+        let perturbation: Vec<f64> = (0..=n).map(|i| (rotation[i] - b) * phi[i]).collect();
+        (b, -inner(&perturbation, &response))
     }
 
     /// Solve discrete level `v`. With a `start` energy close to the level (from a coarser
