@@ -103,3 +103,26 @@ fn centrifugal_distortion_by_perturbation_theory() {
     let d0 = sets[0].levels[0].centrifugal_distortion;
     assert!(((d0 - kratzer) / kratzer).abs() < alpha / b_e);
 }
+
+#[test]
+fn sextic_distortion_by_third_order_perturbation_theory() {
+    // H_v = E3 = <psi1| V' - B |psi1> (Rayleigh-Schroedinger third order; Hutson 1981) against a
+    // quintic fit of E(J), J = 0..8, in l = J(J+1) (finite differences, common practice), to
+    // 1e-4 relative. HCl Morse (Huber-Herzberg constants).
+    let (morse, mu) = common::hcl_morse();
+    let settings = SolverSettings::default().with_highest_v(Some(1));
+    let sets: Vec<_> = (0..9)
+        .map(|j| solve(&RadialProblem::new(&morse, mu, j), &settings).unwrap())
+        .collect();
+    let lambda: Vec<f64> = (0..9u32).map(|j| f64::from(j * (j + 1))).collect();
+    for v in 0..2 {
+        let energies: Vec<f64> = sets.iter().map(|s| s.levels[v].energy).collect();
+        let fit = rungs::constants::polynomial_fit(&lambda, &energies, 5).unwrap();
+        let perturbative = sets[0].levels[v].sextic_distortion;
+        assert!(
+            ((perturbative - fit.coefficients[3]) / perturbative).abs() < 1e-4,
+            "v={v}"
+        );
+        assert!(perturbative > 0.0);
+    }
+}

@@ -21,6 +21,14 @@ impl DisplayUnits {
     fn l(&self, bohr: f64) -> Cell {
         Cell::Number(self.length.from_atomic(bohr))
     }
+    /// An energy, or a blank where it was not computed (NaN).
+    fn opt_e(&self, hartree: f64) -> Cell {
+        if hartree.is_nan() {
+            Cell::Missing
+        } else {
+            self.e(hartree)
+        }
+    }
     fn opt_l(&self, bohr: Option<f64>) -> Cell {
         bohr.map_or(Cell::Missing, |b| self.l(b))
     }
@@ -166,6 +174,7 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
         Column::new(format!("mean_r-2_{lu}-2"), 6),
         Column::new(format!("B_v_{eu}"), 6),
         Column::new(format!("D_v_{eu}"), 4),
+        Column::new(format!("H_v_{eu}"), 4),
         Column::new(format!("error_{eu}"), 1),
         Column::new("converged", 0),
     ];
@@ -189,11 +198,8 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
                 units.l(level.mean_r),
                 Cell::Number(level.mean_inverse_r2 / units.length.from_atomic(1.0).powi(2)),
                 units.e(level.rotational_constant),
-                if level.centrifugal_distortion.is_nan() {
-                    Cell::Missing
-                } else {
-                    units.e(level.centrifugal_distortion)
-                },
+                units.opt_e(level.centrifugal_distortion),
+                units.opt_e(level.sextic_distortion),
                 units.e(level.error_estimate),
                 Cell::Flag(level.converged),
             ]);

@@ -132,6 +132,7 @@ pub(super) fn solve_dvr(
             mean_inverse_r2,
             rotational_constant: mean_inverse_r2 / (2.0 * problem.reduced_mass),
             centrifugal_distortion: f64::NAN,
+            sextic_distortion: f64::NAN,
         });
         if settings.keep_wavefunctions {
             wavefunctions.push(Wavefunction {

@@ -153,6 +153,9 @@ pub struct Level {
     /// D_v, the centrifugal distortion constant (E = ... + B_v J(J+1) - D_v [J(J+1)]^2), hartree,
     /// by perturbation theory (Hutson 1981) about the J solved; NaN from the sinc-DVR reference.
     pub centrifugal_distortion: f64,
+    /// H_v, the next term (+ H_v [J(J+1)]^3), hartree, by third-order perturbation theory;
+    /// NaN from the sinc-DVR reference.
+    pub sextic_distortion: f64,
 }
 
 /// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe.
@@ -775,6 +778,7 @@ fn richardson_level(
     let mut mean_r = [0.0; 3];
     let mut mean_inv = [0.0; 3];
     let mut distortion = [0.0; 3];
+    let mut sextic = [0.0; 3];
     let mut last = None;
     let (mut lo, mut hi) = bracket;
     for (k, g) in grids.iter().enumerate() {
@@ -791,7 +795,7 @@ fn richardson_level(
         (mean_r[k], mean_inv[k]) = numerov.expectations(&level.phi);
         // D_v is smooth in h too; its two finest values and one Richardson step suffice.
         if k > 0 {
-            distortion[k] = numerov.rotational_constants(level.energy, &level.phi).1;
+            (_, distortion[k], sextic[k]) = numerov.rotational_constants(level.energy, &level.phi);
         }
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
@@ -802,6 +806,7 @@ fn richardson_level(
     let (r_avg, _) = richardson(mean_r);
     let (inv_r2, _) = richardson(mean_inv);
     let centrifugal_distortion = distortion[2] + (distortion[2] - distortion[1]) / 15.0;
+    let sextic_distortion = sextic[2] + (sextic[2] - sextic[1]) / 15.0;
     let (level, finest) = last.expect("three grids solved");
     let absolute = energy + floor;
     let (inner, outer) = turning(
@@ -823,6 +828,7 @@ fn richardson_level(
             mean_inverse_r2: inv_r2,
             rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
             centrifugal_distortion,
+            sextic_distortion,
         },
         wavefunction: settings.keep_wavefunctions.then(|| {
             let (r, psi) = finest.wavefunction(&level.phi);

@@ -305,8 +305,9 @@ impl NumerovGrid {
     /// Numerov's scheme for phi'' = Q phi + S, S = -c (B - V') phi0 (Y = f phi - h^2 S/12,
     /// Y_{i+1} = 2 Y_i - Y_{i-1} + h^2 (Q_i phi_i + S_i)), outward and inward from zero, the two
     /// particular solutions joined at the largest |phi0| by adding a multiple of phi0.
-    /// `phi` is the normalised level on this grid at `energy`. Returns (B, D), hartree.
-    pub fn rotational_constants(&self, energy: f64, phi: &[f64]) -> (f64, f64) {
+    /// `phi` is the normalised level on this grid at `energy`. Third order gives
+    /// H = E3 = <psi1| V' - B |psi1>. Returns (B, D, H), hartree.
+    pub fn rotational_constants(&self, energy: f64, phi: &[f64]) -> (f64, f64, f64) {
         let n = self.grid.intervals;
         let h = self.grid.step;
         let h2 = h * h;
@@ -368,7 +369,10 @@ impl NumerovGrid {
             .zip(phi)
             .for_each(|(r, p)| *r -= overlap * p);
         let perturbation: Vec<f64> = (0..=n).map(|i| (rotation[i] - b) * phi[i]).collect();
-        (b, -inner(&perturbation, &response))
+        let centrifugal = -inner(&perturbation, &response);
+        // Third order (Rayleigh-Schroedinger, psi1 orthogonal to psi0): E3 = <psi1| V' - B |psi1>.
+        let shifted: Vec<f64> = (0..=n).map(|i| (rotation[i] - b) * response[i]).collect();
+        (b, centrifugal, inner(&response, &shifted))
     }
 
     /// Solve discrete level `v`. With a `start` energy close to the level (from a coarser
