@@ -51,6 +51,12 @@ enum Command {
         after_help = "Examples:\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv --energy-zero lowest --format csv"
     )]
     Compare(CompareArgs),
+    /// Near dissociation: LeRoy-Bernstein fit of the highest levels (limit, v_D, C_n) and the
+    /// levels it predicts, beside the solver's own count.
+    #[command(
+        after_help = "Examples:\n  rungs near-limit curves/demo_points.toml\n  rungs near-limit curves/demo_points.toml --power 6 --top 8"
+    )]
+    NearLimit(NearLimitArgs),
 }
 
 #[derive(Args)]
@@ -175,6 +181,20 @@ struct CompareArgs {
     /// minimum (the curve minimum) or limit (the dissociation limit).
     #[arg(long, default_value = "lowest", value_parser = ["lowest", "minimum", "limit"])]
     energy_zero: String,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+#[derive(Args)]
+struct NearLimitArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// The power n of the long-range tail -C_n/r^n (default: the curve's, if it has one).
+    #[arg(long)]
+    power: Option<f64>,
+    /// How many of the highest levels to fit (at least 4).
+    #[arg(long, default_value_t = 6)]
+    top: usize,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -478,6 +498,44 @@ fn compare(args: CompareArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
+fn near_limit(args: NearLimitArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let power = args
+        .power
+        .or(setup.curve.long_range_power())
+        .ok_or_else(|| {
+            bad_input(format!(
+                "{}: the curve has no inverse-power tail; give --power n",
+                setup.source
+            ))
+        })?;
+    let mu = setup.pair.reduced_mass();
+    let set = solver::solve(
+        &RadialProblem::new(setup.curve.as_ref(), mu, 0),
+        &SolverSettings::default(),
+    )
+    .map_err(|e| solver_failure(&setup.source, e))?;
+    let top: Vec<(u32, f64)> = set
+        .levels
+        .iter()
+        .rev()
+        .take(args.top)
+        .map(|l| (l.v, l.energy))
+        .collect();
+    let fit = rungs::dissociation::leroy_bernstein(&top, power, mu)
+        .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
+    let table = rungs::report::tables::dissociation_table(
+        &fit,
+        top.len(),
+        set.levels.len(),
+        &setup.pair,
+        units,
+    );
+    print_table(&table, &args.output)?;
+    Ok(ExitCode::SUCCESS)
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
@@ -485,6 +543,7 @@ fn main() -> ExitCode {
         Command::Levels(args) => levels(*args),
         Command::Constants(args) => constants(args),
         Command::Compare(args) => compare(args),
+        Command::NearLimit(args) => near_limit(args),
     };
     match result {
         Ok(code) => code,

@@ -126,3 +126,41 @@ fn sextic_distortion_by_third_order_perturbation_theory() {
         assert!(perturbative > 0.0);
     }
 }
+
+#[test]
+fn leroy_bernstein_recovers_the_c6_of_a_lennard_jones_curve() {
+    // A Lennard-Jones 12-6 curve (invented: epsilon = 1000 cm-1, r_e = 4 angstrom, 85Rb2 masses)
+    // has the tail -C6/r^6 with C6 = 2 epsilon r_e^6 (common practice). A LeRoy-Bernstein fit
+    // (LeRoy & Bernstein, J. Chem. Phys. 52, 3869 (1970)) of its six highest levels recovers C6
+    // within a few per cent and predicts the solver's bound-level count.
+    use rungs::curve::LennardJones;
+    use rungs::units::{from_angstrom, from_wavenumber};
+    let mu = common::mu_of("85Rb", "85Rb");
+    let lj = LennardJones::new(from_wavenumber(1000.0), from_angstrom(4.0), 12.0, 6.0);
+    let set = solve(&RadialProblem::new(&lj, mu, 0), &SolverSettings::default()).unwrap();
+    let top: Vec<(u32, f64)> = set
+        .levels
+        .iter()
+        .rev()
+        .take(6)
+        .map(|l| (l.v, l.energy))
+        .collect();
+    let fit = rungs::dissociation::leroy_bernstein(&top, 6.0, mu).unwrap();
+    let c6 = lj.dispersion_coefficient();
+    assert!(((fit.dispersion_coefficient - c6) / c6).abs() < 0.05);
+    assert_eq!(fit.bound_levels as usize, set.levels.len());
+    assert!(fit.limit.abs() < 1e-3 * lj.well_depth);
+    // Fitted without the three highest levels, it still predicts the solver's count, and
+    // lists the three unseen levels.
+    let n = set.levels.len();
+    let lower: Vec<(u32, f64)> = set.levels[n - 9..n - 3]
+        .iter()
+        .map(|l| (l.v, l.energy))
+        .collect();
+    let partial = rungs::dissociation::leroy_bernstein(&lower, 6.0, mu).unwrap();
+    assert_eq!(partial.bound_levels as usize, n);
+    assert_eq!(
+        partial.predicted.iter().map(|p| p.0).collect::<Vec<_>>(),
+        vec![45, 46, 47]
+    );
+}

@@ -419,3 +419,86 @@ pub fn comparison_table(
         notes,
     }
 }
+
+/// A LeRoy-Bernstein fit with the solver's own count beside it.
+pub fn dissociation_table(
+    fit: &crate::dissociation::LeRoyBernstein,
+    used: usize,
+    solver_count: usize,
+    pair: &Pair,
+    units: DisplayUnits,
+) -> Table {
+    let eu = units.energy.name;
+    let mut rows = vec![
+        vec![
+            Cell::Text("power_n".into()),
+            Cell::Number(fit.power),
+            Cell::Text(String::new()),
+        ],
+        vec![
+            Cell::Text("limit".into()),
+            units.e(fit.limit),
+            Cell::Text(eu.into()),
+        ],
+        vec![
+            Cell::Text("v_at_limit".into()),
+            Cell::Number(fit.v_at_limit),
+            Cell::Text(String::new()),
+        ],
+        vec![
+            Cell::Text(format!("C_{}", fit.power)),
+            Cell::Number(fit.dispersion_coefficient),
+            Cell::Text(format!("hartree bohr^{}", fit.power)),
+        ],
+        vec![
+            Cell::Text("fit_rms".into()),
+            units.e(fit.rms_residual),
+            Cell::Text(eu.into()),
+        ],
+        vec![
+            Cell::Text("levels_used".into()),
+            Cell::Integer(used as i64),
+            Cell::Text(String::new()),
+        ],
+        vec![
+            Cell::Text("bound_levels_leroy_bernstein".into()),
+            Cell::Integer(fit.bound_levels.into()),
+            Cell::Text(String::new()),
+        ],
+        vec![
+            Cell::Text("bound_levels_solver".into()),
+            Cell::Integer(solver_count as i64),
+            Cell::Text(String::new()),
+        ],
+    ];
+    for (v, binding) in &fit.predicted {
+        rows.push(vec![
+            Cell::Text(format!("predicted_binding_v{v}")),
+            units.e(*binding),
+            Cell::Text(eu.into()),
+        ]);
+    }
+    let verdict = if fit.bound_levels as usize == solver_count {
+        "the LeRoy-Bernstein count agrees with the solver's".to_string()
+    } else {
+        format!(
+            "the counts differ: trust the solver's {solver_count} (an exact Sturm count on the curve itself, stable when its box is doubled); the LeRoy-Bernstein estimate assumes the pure -C_n/r^n form reaches down to the levels used"
+        )
+    };
+    Table {
+        title: format!(
+            "near dissociation: LeRoy-Bernstein fit of the highest levels of {}",
+            pair.label()
+        ),
+        columns: vec![
+            Column::new("quantity", 0),
+            Column::new("value", 8),
+            Column::new("unit", 0),
+        ],
+        rows,
+        notes: vec![
+            verdict,
+            "no uncertainties are attached to the fitted values yet".into(),
+        ],
+    }
+}
