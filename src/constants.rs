@@ -117,13 +117,21 @@ pub fn spacings(set: &LevelSet) -> (Vec<f64>, Vec<f64>) {
     (first, second)
 }
 
-/// Levels with v in `v_range` (inclusive), as (v + 1/2, energy, B_v).
-fn selected(set: &LevelSet, v_range: (u32, u32)) -> Vec<(f64, f64, f64)> {
-    set.levels
+/// Least-squares polynomial in (v + 1/2) of one quantity of the levels with v in `v_range`.
+fn fit_in_v(
+    set: &LevelSet,
+    v_range: (u32, u32),
+    order: usize,
+    quantity: impl Fn(&crate::solver::Level) -> f64,
+) -> Result<PolynomialFit, FitError> {
+    let chosen: Vec<_> = set
+        .levels
         .iter()
         .filter(|l| l.v >= v_range.0 && l.v <= v_range.1)
-        .map(|l| (f64::from(l.v) + 0.5, l.energy, l.rotational_constant))
-        .collect()
+        .collect();
+    let x: Vec<f64> = chosen.iter().map(|l| f64::from(l.v) + 0.5).collect();
+    let y: Vec<f64> = chosen.iter().map(|l| quantity(l)).collect();
+    polynomial_fit(&x, &y, order)
 }
 
 /// Fit G(v) over `v_range` with a polynomial of `order` in (v + 1/2). Returns the fit; the
@@ -133,10 +141,7 @@ pub fn fit_vibrational(
     v_range: (u32, u32),
     order: usize,
 ) -> Result<PolynomialFit, FitError> {
-    let points = selected(set, v_range);
-    let x: Vec<f64> = points.iter().map(|p| p.0).collect();
-    let y: Vec<f64> = points.iter().map(|p| p.1).collect();
-    polynomial_fit(&x, &y, order)
+    fit_in_v(set, v_range, order, |l| l.energy)
 }
 
 /// Fit B_v over `v_range` with a polynomial of `order` in (v + 1/2): B_e = c_0,
@@ -146,10 +151,7 @@ pub fn fit_rotational(
     v_range: (u32, u32),
     order: usize,
 ) -> Result<PolynomialFit, FitError> {
-    let points = selected(set, v_range);
-    let x: Vec<f64> = points.iter().map(|p| p.0).collect();
-    let y: Vec<f64> = points.iter().map(|p| p.2).collect();
-    polynomial_fit(&x, &y, order)
+    fit_in_v(set, v_range, order, |l| l.rotational_constant)
 }
 
 /// Birge-Sponer estimate of the dissociation energy from v = 0 (hartree): the sum of the

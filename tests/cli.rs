@@ -15,6 +15,15 @@ fn run(args: &[&str]) -> (i32, String, String) {
     )
 }
 
+/// The value column of the row named `name` in a quantity,value,... CSV.
+fn csv_value(csv: &str, name: &str) -> f64 {
+    let line = csv
+        .lines()
+        .find(|l| l.starts_with(&format!("{name},")))
+        .unwrap();
+    line.split(',').nth(1).unwrap().parse().unwrap()
+}
+
 #[test]
 fn constants_of_the_demo_morse() {
     // curves/demo_morse.toml is a Morse curve given by omega_e = 900 and omega_e x_e = 8.5 cm-1;
@@ -28,13 +37,7 @@ fn constants_of_the_demo_morse() {
         "csv",
     ]);
     assert_eq!(code, 0, "{stderr}");
-    let value = |name: &str| -> f64 {
-        let line = stdout
-            .lines()
-            .find(|l| l.starts_with(&format!("{name},")))
-            .unwrap();
-        line.split(',').nth(1).unwrap().parse().unwrap()
-    };
+    let value = |name: &str| csv_value(&stdout, name);
     assert!((value("omega_e") - 900.0).abs() < 1e-6);
     assert!((value("omega_e_x_e") - 8.5).abs() < 1e-6);
 }
@@ -137,13 +140,7 @@ fn near_limit_on_the_demo_points() {
     // the solver's count.
     let (code, stdout, stderr) = run(&["near-limit", "curves/demo_points.toml", "--format", "csv"]);
     assert_eq!(code, 0, "{stderr}");
-    let value = |name: &str| -> f64 {
-        let line = stdout
-            .lines()
-            .find(|l| l.starts_with(&format!("{name},")))
-            .unwrap();
-        line.split(',').nth(1).unwrap().parse().unwrap()
-    };
+    let value = |name: &str| csv_value(&stdout, name);
     let c6 = 2.0e7 / 219474.6313632 * (1.0 / 0.529177210903f64).powi(6);
     assert!(((value("C_6") - c6) / c6).abs() < 0.05);
     assert_eq!(

@@ -27,17 +27,8 @@ pub struct MeasuredLevel {
 
 /// Parse the text of a measured-levels file. `file` names it in messages.
 pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, InputError> {
-    let mut rows = text
-        .lines()
-        .enumerate()
-        .map(|(i, l)| (i + 1, l.trim()))
-        .filter(|(_, l)| !l.is_empty() && !l.starts_with('#'));
-    let (header_line, header) = rows.next().ok_or_else(|| {
-        InputError::in_file(
-            file,
-            "the file is empty; it needs a header such as 'v,J,energy_cm-1,uncertainty_cm-1'",
-        )
-    })?;
+    let ((header_line, header), rows) =
+        super::data_lines(text, file, "v,J,energy_cm-1,uncertainty_cm-1")?;
     let cells: Vec<&str> = header.split(',').map(str::trim).collect();
     let wrong_header = || {
         InputError::at(

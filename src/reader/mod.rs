@@ -84,6 +84,32 @@ impl InputError {
     }
 }
 
+/// A line of a text file with its 1-based number.
+type NumberedLine<'t> = (usize, &'t str);
+
+/// The numbered lines of a CSV text that carry data: blank lines and '#' comments skipped.
+/// The first is the header; a missing header is an error telling what it should be.
+fn data_lines<'t>(
+    text: &'t str,
+    file: &str,
+    header_example: &str,
+) -> Result<(NumberedLine<'t>, impl Iterator<Item = NumberedLine<'t>>), InputError> {
+    let mut rows = text
+        .lines()
+        .enumerate()
+        .map(|(i, l)| (i + 1, l.trim()))
+        .filter(|(_, l)| !l.is_empty() && !l.starts_with('#'));
+    let header = rows.next().ok_or_else(|| {
+        InputError::in_file(
+            file,
+            format!(
+                "the file is empty; it needs a header such as '{header_example}' and data rows"
+            ),
+        )
+    })?;
+    Ok((header, rows))
+}
+
 /// Solver settings a curve file may carry, in atomic units; all optional.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct SolverHints {

@@ -47,17 +47,7 @@ fn header_unit(
 
 /// Parse the text of a points file. `file` names it in messages.
 pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
-    let mut rows = text
-        .lines()
-        .enumerate()
-        .map(|(i, l)| (i + 1, l.trim()))
-        .filter(|(_, l)| !l.is_empty() && !l.starts_with('#'));
-    let (header_line, header) = rows.next().ok_or_else(|| {
-        InputError::in_file(
-            file,
-            "the points file is empty; it needs a header such as 'r_angstrom,energy_cm-1' and at least 4 rows",
-        )
-    })?;
+    let ((header_line, header), rows) = super::data_lines(text, file, "r_angstrom,energy_cm-1")?;
     let cells: Vec<&str> = header.split(',').map(str::trim).collect();
     if cells.len() != 2 {
         return Err(InputError::at(
