@@ -52,12 +52,19 @@ pub enum CompareError {
     NoLowestLevel,
 }
 
-/// Compare measured levels with computed level sets (one per J).
+/// Compare measured levels (or transitions) with computed level sets (one per J).
 pub fn compare(
     measured: &[MeasuredLevel],
     sets: &[LevelSet],
     zero: EnergyZero,
 ) -> Result<Comparison, CompareError> {
+    let find = |v: u32, j: u32| {
+        sets.iter()
+            .filter(|s| s.j == j)
+            .flat_map(|s| &s.levels)
+            .find(|l| l.v == v)
+            .map(|l| l.energy)
+    };
     let offset = match zero {
         EnergyZero::LowestLevel => sets
             .iter()
@@ -72,22 +79,47 @@ pub fn compare(
             .and_then(|s| s.limit)
             .ok_or(CompareError::NoLimit)?,
     };
-    let find = |v: u32, j: u32| {
-        sets.iter()
-            .filter(|s| s.j == j)
-            .flat_map(|s| &s.levels)
-            .find(|l| l.v == v)
+    let mut comparison = compare_with(measured, |_, m| {
+        let upper = find(m.v, m.j)?;
+        match m.lower {
+            Some((v, j)) => Some(upper - find(v, j)?),
+            None => Some(upper - offset),
+        }
+    });
+    let measured_js: Vec<u32> = measured
+        .iter()
+        .flat_map(|m| std::iter::once(m.j).chain(m.lower.map(|(_, j)| j)))
+        .collect();
+    let is_measured = |v: u32, j: u32| {
+        measured
+            .iter()
+            .any(|m| (m.v == v && m.j == j) || m.lower == Some((v, j)))
     };
+    comparison.computed_not_measured = sets
+        .iter()
+        .filter(|s| measured_js.contains(&s.j))
+        .flat_map(|s| s.levels.iter().map(move |l| (l.v, s.j)))
+        .filter(|(v, j)| !is_measured(*v, *j))
+        .count();
+    Ok(comparison)
+}
+
+/// Compare measured values with what `calc` computes for each (given its index and itself) on
+/// the same energy zero (None: no computed counterpart, listed as unassigned).
+/// `computed_not_measured` is left at 0.
+pub fn compare_with(
+    measured: &[MeasuredLevel],
+    calc: impl Fn(usize, &MeasuredLevel) -> Option<f64>,
+) -> Comparison {
     let mut residuals = Vec::new();
     let mut unassigned = Vec::new();
-    for level in measured {
-        match find(level.v, level.j) {
+    for (index, level) in measured.iter().enumerate() {
+        match calc(index, level) {
             Some(computed) => {
-                let calc = computed.energy - offset;
-                let obs_minus_calc = level.energy - calc;
+                let obs_minus_calc = level.energy - computed;
                 residuals.push(Residual {
                     measured: level.clone(),
-                    computed: calc,
+                    computed,
                     obs_minus_calc,
                     normalised: obs_minus_calc / level.uncertainty,
                 });
@@ -95,13 +127,6 @@ pub fn compare(
             None => unassigned.push(level.clone()),
         }
     }
-    let measured_js: Vec<u32> = measured.iter().map(|m| m.j).collect();
-    let computed_not_measured = sets
-        .iter()
-        .filter(|s| measured_js.contains(&s.j))
-        .flat_map(|s| s.levels.iter().map(move |l| (l.v, s.j)))
-        .filter(|(v, j)| !measured.iter().any(|m| m.v == *v && m.j == *j))
-        .count();
     let n = residuals.len().max(1) as f64;
     let rms = (residuals
         .iter()
@@ -111,11 +136,11 @@ pub fn compare(
         .sqrt();
     let weighted_deviation =
         (residuals.iter().map(|r| r.normalised.powi(2)).sum::<f64>() / n).sqrt();
-    Ok(Comparison {
+    Comparison {
         residuals,
         unassigned,
-        computed_not_measured,
+        computed_not_measured: 0,
         rms,
         weighted_deviation,
-    })
+    }
 }

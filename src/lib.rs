@@ -4,7 +4,7 @@
 //! potential-energy curves.
 //!
 //! Data flow, one way: [`reader`] (curve files, points, analytic models, units, masses) ->
-//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`compare`], [`dissociation`]) -> [`report`] (tables,
+//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`compare`], [`dissociation`], [`fit`]) -> [`report`] (tables,
 //! CSV, JSON). Each stage knows nothing of the stages after it. Inside the library every number
 //! is in Hartree atomic units (see [`units`]).
 
@@ -12,6 +12,7 @@ pub mod compare;
 pub mod constants;
 pub mod curve;
 pub mod dissociation;
+pub mod fit;
 pub mod masses;
 pub mod reader;
 pub mod report;

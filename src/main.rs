@@ -57,6 +57,12 @@ enum Command {
         after_help = "Examples:\n  rungs near-limit curves/demo_points.toml\n  rungs near-limit curves/demo_points.toml --power 6 --top 8"
     )]
     NearLimit(NearLimitArgs),
+    /// Fit curve parameters to measured levels or transitions (Levenberg-Marquardt with
+    /// Hellmann-Feynman derivatives), with standard errors, correlations and residuals.
+    #[command(
+        after_help = "Examples:\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width,r_e --write-curve fitted.toml\n  rungs fit curves/demo_morse.toml --measured lines.csv --vary well_depth,width --isotopologue 6LiF=6Li,19F\n\nParameters: morse well_depth, width, r_e; harmonic force_constant, r_e; lennard-jones\nwell_depth, r_e; points depth_scale, r_shift (V = L + s [V_table(r - d) - L])."
+    )]
+    Fit(FitArgs),
 }
 
 #[derive(Args)]
@@ -181,6 +187,40 @@ struct CompareArgs {
     /// minimum (the curve minimum) or limit (the dissociation limit).
     #[arg(long, default_value = "lowest", value_parser = ["lowest", "minimum", "limit"])]
     energy_zero: String,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+#[derive(Args)]
+struct FitArgs {
+    #[command(flatten)]
+    curve: CurveArgs,
+    /// Measured levels (CSV: v,J,energy_<unit>,uncertainty_<unit>[,tag]) or transitions
+    /// (v,J,v_lower,J_lower,transition_<unit>,uncertainty_<unit>[,tag]).
+    #[arg(long)]
+    measured: PathBuf,
+    /// The parameters to vary, by their curve-file names, comma-separated.
+    #[arg(long, value_delimiter = ',', required = true)]
+    vary: Vec<String>,
+    /// Lines tagged TAG belong to this isotopologue: TAG=FIRST,SECOND (atoms as in --atoms).
+    /// Repeat for several. Untagged lines, and tags not named here, use the curve's molecule.
+    #[arg(long, value_name = "TAG=FIRST,SECOND")]
+    isotopologue: Vec<String>,
+    /// The zero of measured level energies: lowest (v = 0, J = Omega), minimum or limit.
+    #[arg(long, default_value = "lowest", value_parser = ["lowest", "minimum", "limit"])]
+    energy_zero: String,
+    /// Omega of the electronic state.
+    #[arg(long, default_value_t = 0)]
+    omega: u32,
+    /// Most evaluations of the levels before the fit gives up.
+    #[arg(long, default_value_t = 200)]
+    max_evaluations: usize,
+    /// Write the fitted curve as a curve file.
+    #[arg(long, value_name = "FILE")]
+    write_curve: Option<PathBuf>,
+    /// No progress display.
+    #[arg(long)]
+    quiet: bool,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -461,21 +501,32 @@ fn constants(args: ConstantsArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-fn compare(args: CompareArgs) -> Result<ExitCode> {
-    use rungs::compare::EnergyZero;
-    let setup = load_curve(&args.curve)?;
-    let units = display_units(&args.output)?;
-    let name = args.measured.display().to_string();
-    let text = std::fs::read_to_string(&args.measured)
+fn read_measured(path: &Path) -> Result<Vec<rungs::reader::MeasuredLevel>> {
+    let name = path.display().to_string();
+    let text = std::fs::read_to_string(path)
         .map_err(|e| bad_input(format!("{name}: cannot read: {e}")))?;
-    let measured =
-        rungs::reader::parse_measured(&text, &name).map_err(|e| bad_input(e.to_string()))?;
-    let zero = match args.energy_zero.as_str() {
+    rungs::reader::parse_measured(&text, &name).map_err(|e| bad_input(e.to_string()))
+}
+
+fn energy_zero(name: &str) -> rungs::compare::EnergyZero {
+    use rungs::compare::EnergyZero;
+    match name {
         "minimum" => EnergyZero::CurveMinimum,
         "limit" => EnergyZero::DissociationLimit,
         _ => EnergyZero::LowestLevel,
-    };
-    let mut js: Vec<u32> = measured.iter().map(|m| m.j).chain([0]).collect();
+    }
+}
+
+fn compare(args: CompareArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let measured = read_measured(&args.measured)?;
+    let zero = energy_zero(&args.energy_zero);
+    let mut js: Vec<u32> = measured
+        .iter()
+        .flat_map(|m| [m.j].into_iter().chain(m.lower.map(|(_, j)| j)))
+        .chain([0])
+        .collect();
     js.sort_unstable();
     js.dedup();
     let mu = setup.pair.reduced_mass();
@@ -496,6 +547,102 @@ fn compare(args: CompareArgs) -> Result<ExitCode> {
         &args.output,
     )?;
     Ok(ExitCode::SUCCESS)
+}
+
+fn fit(args: FitArgs) -> Result<ExitCode> {
+    use rungs::fit::{FitProgress, FitRequest, Isotopologue};
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let measured = read_measured(&args.measured)?;
+    let mut isotopologues = vec![Isotopologue {
+        tag: None,
+        label: setup.pair.label(),
+        reduced_mass: setup.pair.reduced_mass(),
+    }];
+    for spec in &args.isotopologue {
+        let wrong = || {
+            bad_input(format!(
+                "--isotopologue '{spec}': write TAG=FIRST,SECOND, e.g. 6LiF=6Li,19F"
+            ))
+        };
+        let (tag, atoms) = spec.split_once('=').ok_or_else(wrong)?;
+        let (first, second) = atoms.split_once(',').ok_or_else(wrong)?;
+        let pair = rungs::masses::Pair::new(
+            rungs::masses::Atom::parse(first)
+                .map_err(|e| bad_input(format!("--isotopologue '{spec}': {e}")))?,
+            rungs::masses::Atom::parse(second)
+                .map_err(|e| bad_input(format!("--isotopologue '{spec}': {e}")))?,
+            setup.pair.charge,
+        );
+        isotopologues.push(Isotopologue {
+            tag: Some(tag.trim().to_string()),
+            label: pair.label(),
+            reduced_mass: pair.reduced_mass(),
+        });
+    }
+    let request = FitRequest {
+        curve: setup.curve.clone(),
+        vary: args.vary.iter().map(|v| v.trim().to_string()).collect(),
+        isotopologues: isotopologues.clone(),
+        measured: &measured,
+        zero: energy_zero(&args.energy_zero),
+        omega: args.omega,
+        settings: SolverSettings::default(),
+        max_evaluations: args.max_evaluations,
+    };
+    let bar = if args.quiet {
+        indicatif::ProgressBar::hidden()
+    } else {
+        indicatif::ProgressBar::new_spinner()
+    };
+    bar.enable_steady_tick(std::time::Duration::from_millis(120));
+    let on_step = |p: FitProgress| {
+        bar.set_message(format!(
+            "fitting: evaluation {}, chi^2 = {:.6e}",
+            p.evaluations, p.chi_squared
+        ));
+    };
+    let result = rungs::fit::fit(&request, &on_step);
+    bar.finish_and_clear();
+    let outcome = result.map_err(|e| bad_input(format!("{}: {e}", args.measured.display())))?;
+    let mut residuals =
+        rungs::report::tables::comparison_table(&outcome.comparison, &setup.pair, units);
+    residuals.title = "residuals at the fitted curve".into();
+    let tables = [
+        rungs::report::tables::fit_parameters_table(&outcome, &isotopologues, units),
+        rungs::report::tables::correlation_table(&outcome),
+        residuals,
+    ];
+    write_output(
+        &rungs::report::render_all(&tables, args.output.format),
+        args.output.output.as_deref(),
+    )?;
+    if let Some(path) = &args.write_curve {
+        let out_dir = path
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let note = format!(
+            "fitted by rungs {} to {} ({}; chi^2 = {:.6e}, {} degrees of freedom)",
+            env!("CARGO_PKG_VERSION"),
+            args.measured.display(),
+            outcome.termination,
+            outcome.chi_squared,
+            outcome.degrees_of_freedom
+        );
+        let text = reader::fitted_curve_file(&setup, outcome.curve.as_ref(), out_dir, &note)
+            .map_err(|e| bad_input(e.to_string()))?;
+        std::fs::write(path, text).with_context(|| format!("cannot write '{}'", path.display()))?;
+    }
+    if outcome.converged {
+        Ok(ExitCode::SUCCESS)
+    } else {
+        eprintln!(
+            "error: the fit did not converge: {}; the table shows the last values, not a result",
+            outcome.termination
+        );
+        Ok(ExitCode::from(3))
+    }
 }
 
 fn near_limit(args: NearLimitArgs) -> Result<ExitCode> {
@@ -544,6 +691,7 @@ fn main() -> ExitCode {
         Command::Constants(args) => constants(args),
         Command::Compare(args) => compare(args),
         Command::NearLimit(args) => near_limit(args),
+        Command::Fit(args) => fit(args),
     };
     match result {
         Ok(code) => code,

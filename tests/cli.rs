@@ -148,3 +148,106 @@ fn near_limit_on_the_demo_points() {
         value("bound_levels_solver")
     );
 }
+
+/// The parameter rows of the JSON parameters table of `rungs fit`.
+fn fitted_parameter(json: &serde_json::Value, name: &str) -> (f64, f64) {
+    let row = json[0]["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["parameter"] == name)
+        .unwrap();
+    (
+        row["fitted"].as_f64().unwrap(),
+        row["standard_error"].as_f64().unwrap_or(f64::NAN),
+    )
+}
+
+#[test]
+fn fit_of_two_isotopologues_from_transitions_and_written_curve() {
+    // curves/demo_measured_lines.csv holds lines of 7LiF and 6LiF computed on the Morse curve
+    // of curves/demo_morse.toml (D_e = 23823.529411788 cm-1, a = 1.6073398010 1/angstrom,
+    // r_e = 1.56 angstrom; from omega_e = 900, omega_e x_e = 8.5 cm-1 by D_e = omega_e^2 /
+    // (4 omega_e x_e)), rounded to 1e-4 cm-1. A fit from the guess a few per cent away must
+    // land within 4 of its standard errors of them (a 4-sigma bound, common practice).
+    let dir = tempfile::tempdir().unwrap();
+    let written = dir.path().join("fitted.toml");
+    let written_text = written.to_str().unwrap();
+    let (code, stdout, stderr) = run(&[
+        "fit",
+        "curves/demo_morse_guess.toml",
+        "--measured",
+        "curves/demo_measured_lines.csv",
+        "--vary",
+        "well_depth,width,r_e",
+        "--isotopologue",
+        "6LiF=6Li,19F",
+        "--isotopologue",
+        "7LiF=7Li,19F",
+        "--format",
+        "json",
+        "--write-curve",
+        written_text,
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    for (name, truth) in [
+        ("well_depth", 23823.529411788),
+        ("width", 1.6073398010),
+        ("r_e", 1.56),
+    ] {
+        let (value, error) = fitted_parameter(&json, name);
+        assert!(
+            (value - truth).abs() < 4.0 * error,
+            "{name}: {value} +- {error}, truth {truth}"
+        );
+    }
+    // The written curve reproduces the lines: compare it with them.
+    let (code, stdout, stderr) = run(&[
+        "compare",
+        written_text,
+        "--measured",
+        "curves/demo_measured_lines.csv",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let worst = json["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|r| r["tag"] == "7LiF")
+        .map(|r| r["obs_minus_calc_cm-1"].as_f64().unwrap().abs())
+        .fold(0.0, f64::max);
+    assert!(worst < 1e-3, "{worst}");
+}
+
+#[test]
+fn fit_refusals() {
+    let base = [
+        "fit",
+        "curves/demo_morse_guess.toml",
+        "--measured",
+        "curves/demo_measured_lines.csv",
+    ];
+    let with = |extra: &[&str]| {
+        let mut args = base.to_vec();
+        args.extend_from_slice(extra);
+        run(&args)
+    };
+    let (code, _, stderr) = with(&["--vary", "depth"]);
+    assert_eq!(code, 2);
+    assert!(
+        stderr.contains("no parameter 'depth'") && stderr.contains("well_depth, width, r_e"),
+        "{stderr}"
+    );
+    let (code, _, stderr) = with(&["--vary", "width", "--isotopologue", "6LiF"]);
+    assert_eq!(code, 2);
+    assert!(stderr.contains("TAG=FIRST,SECOND"), "{stderr}");
+    // Stopped early: the table is printed as not converged, and the exit code says so.
+    let (code, stdout, stderr) = with(&["--vary", "well_depth,width", "--max-evaluations", "2"]);
+    assert_eq!(code, 3, "{stderr}");
+    assert!(stdout.contains("FIT NOT CONVERGED"), "{stdout}");
+    assert!(stderr.contains("did not converge"), "{stderr}");
+}

@@ -4,10 +4,12 @@
 //! All curves take r in bohr and return energies in hartree (see [`crate::units`]). This module
 //! knows nothing of files, masses, solvers or reports.
 
+mod adjust;
 mod models;
 mod spline;
 mod tabulated;
 
+pub use adjust::{Adjusted, CurveParameter, ParameterError};
 pub use models::{Harmonic, LennardJones, Morse};
 pub use spline::{CubicSpline, SplineEnd};
 pub use tabulated::{InnerWall, JoinReport, OuterTail, TabulatedCurve, TabulatedError};
@@ -34,6 +36,25 @@ pub trait PotentialCurve: Send + Sync + std::fmt::Debug {
     }
     /// A one-line description with the parameters, in the curve's own units.
     fn describe(&self) -> String;
+    /// The curve-file model name (`morse`, `points`, ...).
+    fn model_name(&self) -> &'static str;
+    /// The parameters a fit may vary, named by their curve-file keys (none by default).
+    fn parameters(&self) -> Vec<CurveParameter> {
+        Vec::new()
+    }
+    /// The same kind of curve with new values of every parameter (in [`Self::parameters`]
+    /// order, atomic units).
+    fn with_parameters(
+        &self,
+        _values: &[f64],
+    ) -> Result<std::sync::Arc<dyn PotentialCurve>, ParameterError> {
+        Err(ParameterError::NotAdjustable)
+    }
+    /// dV/dp at r for the parameter at `index` (hartree per parameter unit), the operator of
+    /// the Hellmann-Feynman derivative dE/dp = <psi| dV/dp |psi>.
+    fn parameter_derivative(&self, _index: usize, _r: f64) -> f64 {
+        f64::NAN
+    }
 }
 
 /// Where the well of a curve lies.

@@ -1,7 +1,17 @@
 //! Analytic curve models. Parameters are stored in atomic units (hartree, bohr, m_e).
 
-use super::PotentialCurve;
-use crate::units::{to_angstrom, to_wavenumber};
+use super::adjust::check_values;
+use super::{CurveParameter, ParameterError, PotentialCurve};
+use crate::units::{to_angstrom, to_wavenumber, Dimension};
+use std::sync::Arc;
+
+fn parameter(name: &'static str, value: f64, dimension: Dimension) -> CurveParameter {
+    CurveParameter {
+        name,
+        value,
+        dimension: Some(dimension),
+    }
+}
 
 /// Harmonic oscillator V(r) = (k/2)(r - r_e)^2 (zero at the minimum, no dissociation limit).
 ///
@@ -57,7 +67,36 @@ impl PotentialCurve for Harmonic {
             to_angstrom(self.r_e)
         )
     }
+    fn model_name(&self) -> &'static str {
+        "harmonic"
+    }
+    fn parameters(&self) -> Vec<CurveParameter> {
+        vec![
+            parameter(
+                "force_constant",
+                self.force_constant,
+                Dimension::ForceConstant,
+            ),
+            parameter("r_e", self.r_e, Dimension::Length),
+        ]
+    }
+    fn with_parameters(&self, values: &[f64]) -> Result<Arc<dyn PotentialCurve>, ParameterError> {
+        check_values(&HARMONIC_NAMES, values, &HARMONIC_NAMES)?;
+        Ok(Arc::new(Harmonic::new(values[0], values[1])))
+    }
+    /// dV/dk = (r - r_e)^2 / 2; dV/dr_e = -k (r - r_e).
+    fn parameter_derivative(&self, index: usize, r: f64) -> f64 {
+        match index {
+            0 => 0.5 * (r - self.r_e).powi(2),
+            1 => -self.force_constant * (r - self.r_e),
+            _ => f64::NAN,
+        }
+    }
 }
+
+const HARMONIC_NAMES: [&str; 2] = ["force_constant", "r_e"];
+const MORSE_NAMES: [&str; 3] = ["well_depth", "width", "r_e"];
+const LENNARD_JONES_NAMES: [&str; 2] = ["well_depth", "r_e"];
 
 /// Morse curve V(r) = D_e [1 - exp(-a (r - r_e))]^2 (P.M. Morse, Phys. Rev. 34, 57 (1929)),
 /// zero at the minimum, dissociation limit D_e.
@@ -168,6 +207,31 @@ impl PotentialCurve for Morse {
             to_angstrom(self.r_e)
         )
     }
+    fn model_name(&self) -> &'static str {
+        "morse"
+    }
+    fn parameters(&self) -> Vec<CurveParameter> {
+        vec![
+            parameter("well_depth", self.well_depth, Dimension::Energy),
+            parameter("width", self.width, Dimension::InverseLength),
+            parameter("r_e", self.r_e, Dimension::Length),
+        ]
+    }
+    fn with_parameters(&self, values: &[f64]) -> Result<Arc<dyn PotentialCurve>, ParameterError> {
+        check_values(&MORSE_NAMES, values, &MORSE_NAMES)?;
+        Ok(Arc::new(Morse::new(values[0], values[1], values[2])))
+    }
+    /// With x = exp(-a (r - r_e)): dV/dD_e = (1 - x)^2, dV/da = 2 D_e (r - r_e) x (1 - x),
+    /// dV/dr_e = -2 a D_e x (1 - x).
+    fn parameter_derivative(&self, index: usize, r: f64) -> f64 {
+        let x = (-self.width * (r - self.r_e)).exp();
+        match index {
+            0 => (1.0 - x).powi(2),
+            1 => 2.0 * self.well_depth * (r - self.r_e) * x * (1.0 - x),
+            2 => -2.0 * self.width * self.well_depth * x * (1.0 - x),
+            _ => f64::NAN,
+        }
+    }
 }
 
 /// Lennard-Jones (n, m) curve with well depth epsilon at r_e, dissociation limit 0:
@@ -245,6 +309,34 @@ impl PotentialCurve for LennardJones {
             to_wavenumber(self.well_depth),
             to_angstrom(self.r_e)
         )
+    }
+    fn model_name(&self) -> &'static str {
+        "lennard-jones"
+    }
+    fn parameters(&self) -> Vec<CurveParameter> {
+        vec![
+            parameter("well_depth", self.well_depth, Dimension::Energy),
+            parameter("r_e", self.r_e, Dimension::Length),
+        ]
+    }
+    fn with_parameters(&self, values: &[f64]) -> Result<Arc<dyn PotentialCurve>, ParameterError> {
+        check_values(&LENNARD_JONES_NAMES, values, &LENNARD_JONES_NAMES)?;
+        Ok(Arc::new(LennardJones::new(
+            values[0],
+            values[1],
+            self.repulsive_power,
+            self.attractive_power,
+        )))
+    }
+    /// dV/depsilon = V/epsilon; with s = r_e/r, dV/dr_e = epsilon n m (s^n - s^m) / ((n - m) r_e).
+    fn parameter_derivative(&self, index: usize, r: f64) -> f64 {
+        let (n, m) = (self.repulsive_power, self.attractive_power);
+        let s = self.r_e / r;
+        match index {
+            0 => self.value(r) / self.well_depth,
+            1 => self.well_depth * n * m * (s.powf(n) - s.powf(m)) / ((n - m) * self.r_e),
+            _ => f64::NAN,
+        }
     }
 }
 

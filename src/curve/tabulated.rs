@@ -1,8 +1,9 @@
 //! A curve given as points: a cubic spline between the points, a repulsive wall fitted to the
 //! innermost three points inward, and a long-range form toward the dissociation limit outward.
 
-use super::{CubicSpline, PotentialCurve, SplineEnd};
+use super::{Adjusted, CubicSpline, CurveParameter, ParameterError, PotentialCurve, SplineEnd};
 use crate::units::{to_angstrom, to_wavenumber};
+use std::sync::Arc;
 
 /// Inward extrapolation: V(r) = A + B f(r) through the three innermost points, with
 /// f = exp(-s r) or r^-s, B > 0 and s > 0 (a repulsive wall).
@@ -496,6 +497,30 @@ impl PotentialCurve for TabulatedCurve {
             to_angstrom(hi),
             to_wavenumber(self.tail.limit())
         )
+    }
+    fn model_name(&self) -> &'static str {
+        "points"
+    }
+    /// A table is adjusted through [`Adjusted`]: `depth_scale` (1) and `r_shift` (0).
+    fn parameters(&self) -> Vec<CurveParameter> {
+        self.as_adjusted().parameters()
+    }
+    fn with_parameters(&self, values: &[f64]) -> Result<Arc<dyn PotentialCurve>, ParameterError> {
+        self.as_adjusted().with_parameters(values)
+    }
+    /// As [`Adjusted`] at s = 1, d = 0: dV/ds = V(r) - L, dV/dd = -V'(r).
+    fn parameter_derivative(&self, index: usize, r: f64) -> f64 {
+        match index {
+            0 => self.value(r) - self.tail.limit(),
+            1 => -self.derivative(r),
+            _ => f64::NAN,
+        }
+    }
+}
+
+impl TabulatedCurve {
+    fn as_adjusted(&self) -> Adjusted {
+        Adjusted::identity(Arc::new(self.clone()))
     }
 }
 

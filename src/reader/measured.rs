@@ -9,6 +9,14 @@
 //! Columns: `v`, `J`, the energy (`<name>_<unit>`), its standard uncertainty (same dimension),
 //! and an optional free-text `tag` (an isotopologue label, a source). Energies are on the zero
 //! the user states when comparing (see [`crate::compare::EnergyZero`]).
+//!
+//! Measured transitions are the other form: the upper level, the lower level, the
+//! wavenumber (or energy) of the transition E(v, J) - E(v_lower, J_lower), and its uncertainty.
+//!
+//! ```text
+//! v,J,v_lower,J_lower,transition_cm-1,uncertainty_cm-1
+//! 1,1,0,0,885.1234,0.0005
+//! ```
 
 use super::InputError;
 use crate::units::{self, Dimension};
@@ -23,6 +31,19 @@ pub struct MeasuredLevel {
     pub tag: Option<String>,
     /// Line of the file, for messages.
     pub line: usize,
+    /// For a measured transition: the lower level (v, J); `energy` is then E(v, J) minus the
+    /// energy of this level.
+    pub lower: Option<(u32, u32)>,
+}
+
+impl MeasuredLevel {
+    /// "v=3 J=1", or "v=3 J=1 <- v=0 J=0" for a transition.
+    pub fn label(&self) -> String {
+        match self.lower {
+            Some((v, j)) => format!("v={} J={} <- v={v} J={j}", self.v, self.j),
+            None => format!("v={} J={}", self.v, self.j),
+        }
+    }
 }
 
 /// Parse the text of a measured-levels file. `file` names it in messages.
@@ -34,10 +55,13 @@ pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, Inpu
         InputError::at(
             file,
             header_line,
-            format!("the header '{header}' must be 'v,J,energy_<unit>,uncertainty_<unit>' with an optional ',tag'"),
+            format!("the header '{header}' must be 'v,J,energy_<unit>,uncertainty_<unit>' (levels) or 'v,J,v_lower,J_lower,transition_<unit>,uncertainty_<unit>' (transitions), with an optional ',tag'"),
         )
     };
-    if !(4..=5).contains(&cells.len()) || cells[0] != "v" || cells[1] != "J" {
+    let transitions = cells.len() >= 4 && cells[2] == "v_lower" && cells[3] == "J_lower";
+    let value_column = if transitions { 4 } else { 2 };
+    let columns = value_column + 2;
+    if !(columns..=columns + 1).contains(&cells.len()) || cells[0] != "v" || cells[1] != "J" {
         return Err(wrong_header());
     }
     let unit_of = |cell: &str| {
@@ -48,18 +72,19 @@ pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, Inpu
         units::parse_unit(unit, Dimension::Energy)
             .map_err(|e| InputError::at(file, header_line, format!("'{cell}': {e}")))
     };
-    let (energy_unit, uncertainty_unit) = (unit_of(cells[2])?, unit_of(cells[3])?);
-    let has_tag = cells.len() == 5;
+    let energy_unit = unit_of(cells[value_column])?;
+    let uncertainty_unit = unit_of(cells[value_column + 1])?;
+    let has_tag = cells.len() == columns + 1;
     let mut levels: Vec<MeasuredLevel> = Vec::new();
     for (line, row) in rows {
         let cells: Vec<&str> = row.split(',').map(str::trim).collect();
-        if cells.len() != 4 + usize::from(has_tag) {
+        if cells.len() != columns + usize::from(has_tag) {
             return Err(InputError::at(
                 file,
                 line,
                 format!(
                     "expected {} cells, found {}",
-                    4 + usize::from(has_tag),
+                    columns + usize::from(has_tag),
                     cells.len()
                 ),
             ));
@@ -88,8 +113,20 @@ pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, Inpu
             }
         };
         let (v, j) = (quantum(0, "v")?, quantum(1, "J")?);
-        let energy = energy_unit.to_atomic(number(2, "energy")?);
-        let uncertainty = uncertainty_unit.to_atomic(number(3, "uncertainty")?);
+        let lower = if transitions {
+            Some((quantum(2, "v_lower")?, quantum(3, "J_lower")?))
+        } else {
+            None
+        };
+        if lower == Some((v, j)) {
+            return Err(InputError::at(
+                file,
+                line,
+                "a transition needs two different levels",
+            ));
+        }
+        let energy = energy_unit.to_atomic(number(value_column, "energy")?);
+        let uncertainty = uncertainty_unit.to_atomic(number(value_column + 1, "uncertainty")?);
         if uncertainty <= 0.0 {
             return Err(InputError::at(
                 file,
@@ -98,13 +135,20 @@ pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, Inpu
             ));
         }
         let tag = has_tag
-            .then(|| cells[4].to_string())
+            .then(|| cells[columns].to_string())
             .filter(|t| !t.is_empty());
-        if let Some(first) = levels.iter().find(|l| l.v == v && l.j == j && l.tag == tag) {
+        if let Some(first) = levels
+            .iter()
+            .find(|l| l.v == v && l.j == j && l.lower == lower && l.tag == tag)
+        {
             return Err(InputError::at(
                 file,
                 line,
-                format!("(v, J) = ({v}, {j}) is assigned twice (lines {} and {line}); keep one, or tag them differently", first.line),
+                format!(
+                    "{} is assigned twice (lines {} and {line}); keep one, or tag them differently",
+                    first.label(),
+                    first.line
+                ),
             ));
         }
         levels.push(MeasuredLevel {
@@ -114,6 +158,7 @@ pub fn parse_measured(text: &str, file: &str) -> Result<Vec<MeasuredLevel>, Inpu
             uncertainty,
             tag,
             line,
+            lower,
         });
     }
     if levels.is_empty() {
@@ -140,5 +185,20 @@ mod tests {
         )
         .unwrap_err();
         assert!(err.to_string().contains("lines 2 and 3"), "{err}");
+    }
+
+    #[test]
+    fn reads_transitions() {
+        let text =
+            "v,J,v_lower,J_lower,transition_cm-1,uncertainty_cm-1,tag\n1,1,0,0,885.1,0.01,a\n";
+        let lines = parse_measured(text, "t.csv").unwrap();
+        assert_eq!(lines[0].lower, Some((0, 0)));
+        assert_eq!(lines[0].label(), "v=1 J=1 <- v=0 J=0");
+        let err = parse_measured(
+            "v,J,v_lower,J_lower,transition_cm-1,uncertainty_cm-1\n1,1,1,1,0,0.01\n",
+            "t.csv",
+        )
+        .unwrap_err();
+        assert!(err.to_string().contains("line 2"), "{err}");
     }
 }

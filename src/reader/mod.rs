@@ -31,7 +31,12 @@
 //!   `natural`), `inner_wall` (`exponential` default, or `inverse-power`), `limit` (the
 //!   dissociation limit; fitted with the tail when absent), and a table `[curve.outer_tail]`
 //!   with `form` (`inverse-power` default, or `exponential`), `powers` (default `[6]`) and
-//!   optionally `coefficients_au` (C_n in hartree bohr^n; fitted when absent).
+//!   optionally `coefficients_au` (C_n in hartree bohr^n; fitted when absent). Optional
+//!   `depth_scale` (a plain number, default 1) and `r_shift` (a length, default 0) adjust the
+//!   table as V(r) = L + s [V_table(r - d) - L] (see [`crate::curve::Adjusted`]); a fit of a
+//!   tabulated curve writes them.
+//!
+//! [`fitted_curve_file`] writes a curve file back with new parameter values.
 
 mod measured;
 mod points;
@@ -40,8 +45,8 @@ pub use measured::{parse_measured, MeasuredLevel};
 pub use points::{parse_points, PointTable};
 
 use crate::curve::{
-    Harmonic, InnerWall, JoinReport, LennardJones, Morse, OuterTail, PotentialCurve, SplineEnd,
-    TabulatedCurve,
+    Adjusted, Harmonic, InnerWall, JoinReport, LennardJones, Morse, OuterTail, PotentialCurve,
+    SplineEnd, TabulatedCurve,
 };
 use crate::masses::{Atom, Pair};
 use crate::units::{self, Dimension};
@@ -135,6 +140,10 @@ pub struct CurveSetup {
     pub tail_coefficients: Vec<(f64, f64)>,
     pub warnings: Vec<String>,
     pub solver: SolverHints,
+    /// The curve file as read (for an inline model, the file it would be), and the folder its
+    /// relative paths start from: what [`fitted_curve_file`] edits.
+    pub document: toml::Table,
+    pub base_dir: PathBuf,
 }
 
 /// Where a table of keys came from, for error messages.
@@ -293,6 +302,8 @@ const MODEL_KEYS: &[(&str, &[&str])] = &[
             "inner_wall",
             "limit",
             "outer_tail",
+            "depth_scale",
+            "r_shift",
         ],
     ),
 ];
@@ -561,11 +572,27 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
     };
     let curve = TabulatedCurve::new(points.points, end, inner, outer, limit)
         .map_err(|e| InputError::in_file(&table_name, e.to_string()))?;
+    let depth_scale = origin.number(table, "depth_scale", 1.0)?;
+    let r_shift = origin.quantity(table, "r_shift", Dimension::Length)?;
+    let join = Some(curve.join());
+    let tail_coefficients = curve.tail_coefficients();
+    let curve: Arc<dyn PotentialCurve> = if depth_scale != 1.0 || r_shift.is_some() {
+        if depth_scale <= 0.0 {
+            return Err(origin.error(Some("depth_scale"), "'depth_scale' must be positive"));
+        }
+        Arc::new(Adjusted {
+            base: Arc::new(curve),
+            depth_scale,
+            r_shift: r_shift.unwrap_or(0.0),
+        })
+    } else {
+        Arc::new(curve)
+    };
     Ok(BuiltCurve {
-        join: Some(curve.join()),
-        tail_coefficients: curve.tail_coefficients(),
+        join,
+        tail_coefficients,
         warnings: points.warnings,
-        curve: Arc::new(curve),
+        curve,
     })
 }
 
@@ -745,6 +772,8 @@ pub fn parse_curve_file(
         tail_coefficients: built.tail_coefficients,
         warnings: built.warnings,
         solver,
+        document,
+        base_dir: base_dir.to_path_buf(),
     })
 }
 
@@ -813,6 +842,15 @@ pub fn parse_inline_model(
         None,
     )?;
     let built = build_curve(&table, &origin, pair.reduced_mass())?;
+    let mut molecule = toml::Table::new();
+    molecule.insert(
+        "atoms".into(),
+        toml::Value::Array(atoms.iter().cloned().map(toml::Value::String).collect()),
+    );
+    molecule.insert("charge".into(), toml::Value::Integer(charge.into()));
+    let mut document = toml::Table::new();
+    document.insert("molecule".into(), toml::Value::Table(molecule));
+    document.insert("curve".into(), toml::Value::Table(table));
     Ok(CurveSetup {
         source: "--model".to_string(),
         title: None,
@@ -822,5 +860,81 @@ pub fn parse_inline_model(
         tail_coefficients: built.tail_coefficients,
         warnings: built.warnings,
         solver: SolverHints::default(),
+        document,
+        base_dir: PathBuf::from("."),
     })
+}
+
+/// Keys of `[curve]` that give an analytic model's parameters; a written file replaces them
+/// all by the model's own parameter keys.
+const PARAMETER_KEYS: &[&str] = &[
+    "well_depth",
+    "width",
+    "r_e",
+    "omega_e",
+    "omega_e_x_e",
+    "sigma",
+    "force_constant",
+    "depth_scale",
+    "r_shift",
+];
+
+/// The unit a written parameter of each dimension carries.
+fn written_unit(dimension: Dimension) -> &'static str {
+    match dimension {
+        Dimension::Energy => "cm-1",
+        Dimension::Length => "angstrom",
+        Dimension::InverseLength => "1/angstrom",
+        Dimension::ForceConstant => "N/m",
+        Dimension::Mass => "u",
+        Dimension::DipoleMoment => "debye",
+    }
+}
+
+/// The text of `setup`'s curve file with the parameters of `curve` (the same model, new
+/// values) written in, and `note` as its note. Every number is written in full precision
+/// with its unit; a points file is referred to by a path that works from `out_dir`.
+pub fn fitted_curve_file(
+    setup: &CurveSetup,
+    curve: &dyn PotentialCurve,
+    out_dir: &Path,
+    note: &str,
+) -> Result<String, InputError> {
+    let mut document = setup.document.clone();
+    document.insert("note".into(), toml::Value::String(note.to_string()));
+    let Some(toml::Value::Table(table)) = document.get_mut("curve") else {
+        return Err(InputError::in_file(
+            &setup.source,
+            "the curve has no [curve] section",
+        ));
+    };
+    table.retain(|key, _| !PARAMETER_KEYS.contains(&key));
+    for parameter in curve.parameters() {
+        let value = match parameter.dimension {
+            None => toml::Value::Float(parameter.value),
+            Some(dimension) => {
+                let unit = written_unit(dimension);
+                let size = units::parse_unit(unit, dimension)
+                    .expect("the written units are in the unit table");
+                toml::Value::String(format!("{} {unit}", size.from_atomic(parameter.value)))
+            }
+        };
+        table.insert(parameter.name.to_string(), value);
+    }
+    if let Some(toml::Value::String(file)) = table.get("file") {
+        let path = setup.base_dir.join(file);
+        let same_folder =
+            std::fs::canonicalize(&setup.base_dir).ok() == std::fs::canonicalize(out_dir).ok();
+        let written = if same_folder {
+            PathBuf::from(file)
+        } else {
+            std::fs::canonicalize(&path).unwrap_or(path)
+        };
+        table.insert(
+            "file".into(),
+            toml::Value::String(written.display().to_string()),
+        );
+    }
+    toml::to_string(&document)
+        .map_err(|e| InputError::in_file(&setup.source, format!("cannot write TOML: {e}")))
 }

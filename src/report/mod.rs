@@ -93,6 +93,27 @@ fn json_cell(cell: &Cell) -> serde_json::Value {
     }
 }
 
+/// Several tables in one output: one after another for people and in CSV (each CSV block
+/// headed by a `# title` comment line), a JSON array of the tables.
+pub fn render_all(tables: &[Table], format: Format) -> String {
+    match format {
+        Format::Json => {
+            let all: Vec<serde_json::Value> = tables.iter().map(Table::to_json).collect();
+            serde_json::to_string_pretty(&all).expect("JSON of plain values") + "\n"
+        }
+        Format::Csv => tables
+            .iter()
+            .map(|t| format!("# {}\n{}", t.title, t.render(Format::Csv)))
+            .collect::<Vec<_>>()
+            .join("\n"),
+        Format::Table => tables
+            .iter()
+            .map(|t| t.render(Format::Table))
+            .collect::<Vec<_>>()
+            .join("\n"),
+    }
+}
+
 impl Table {
     pub fn render(&self, format: Format) -> String {
         match format {

@@ -379,6 +379,12 @@ pub fn comparison_table(
             vec![
                 Cell::Integer(r.measured.v.into()),
                 Cell::Integer(r.measured.j.into()),
+                r.measured
+                    .lower
+                    .map_or(Cell::Missing, |(v, _)| Cell::Integer(v.into())),
+                r.measured
+                    .lower
+                    .map_or(Cell::Missing, |(_, j)| Cell::Integer(j.into())),
                 r.measured.tag.clone().map_or(Cell::Missing, Cell::Text),
                 units.e(r.measured.energy),
                 units.e(r.computed),
@@ -399,8 +405,8 @@ pub fn comparison_table(
     ];
     for level in &comparison.unassigned {
         notes.push(format!(
-            "UNASSIGNED: measured (v, J) = ({}, {}) on line {} has no computed level (not bound on this curve?)",
-            level.v, level.j, level.line
+            "UNASSIGNED: measured {} on line {} has no computed counterpart (a level not bound on this curve?)",
+            level.label(), level.line
         ));
     }
     Table {
@@ -408,6 +414,8 @@ pub fn comparison_table(
         columns: vec![
             Column::new("v", 0),
             Column::new("J", 0),
+            Column::new("v_lower", 0),
+            Column::new("J_lower", 0),
             Column::new("tag", 0),
             Column::new(format!("observed_{eu}"), 6),
             Column::new(format!("calculated_{eu}"), 6),
@@ -500,5 +508,129 @@ pub fn dissociation_table(
             verdict,
             "no uncertainties are attached to the fitted values yet".into(),
         ],
+    }
+}
+
+/// A parameter value in display units: energies and lengths in the chosen units, inverse
+/// lengths per chosen length unit, force constants in N/m; pure numbers as they are.
+fn parameter_in_display(
+    value: f64,
+    dimension: Option<crate::units::Dimension>,
+    units: DisplayUnits,
+) -> (f64, String) {
+    use crate::units::Dimension;
+    match dimension {
+        None => (value, String::new()),
+        Some(Dimension::Energy) => (units.energy.from_atomic(value), units.energy.name.into()),
+        Some(Dimension::Length) => (units.length.from_atomic(value), units.length.name.into()),
+        Some(Dimension::InverseLength) => (
+            value * units.length.in_atomic_units,
+            format!("1/{}", units.length.name),
+        ),
+        Some(other) => {
+            let unit = match other {
+                Dimension::ForceConstant => "N/m",
+                Dimension::Mass => "u",
+                _ => "debye",
+            };
+            let size = crate::units::parse_unit(unit, other).expect("a unit of the table");
+            (size.from_atomic(value), unit.into())
+        }
+    }
+}
+
+/// The fitted parameters with standard errors, and how the fit ended.
+pub fn fit_parameters_table(
+    outcome: &crate::fit::FitOutcome,
+    isotopologues: &[crate::fit::Isotopologue],
+    units: DisplayUnits,
+) -> Table {
+    let rows = outcome
+        .parameters
+        .iter()
+        .map(|p| {
+            let (initial, unit) = parameter_in_display(p.initial, p.dimension, units);
+            let (value, _) = parameter_in_display(p.value, p.dimension, units);
+            let (error, _) = parameter_in_display(p.standard_error, p.dimension, units);
+            vec![
+                Cell::Text(p.name.to_string()),
+                Cell::Text(unit),
+                Cell::Number(initial),
+                Cell::Number(value),
+                if p.varied && error.is_finite() {
+                    Cell::Number(error)
+                } else {
+                    Cell::Missing
+                },
+                Cell::Flag(p.varied),
+            ]
+        })
+        .collect();
+    let dof = outcome.degrees_of_freedom;
+    let mut notes = vec![
+        format!(
+            "{} after {} evaluations; chi^2 {:.6e} -> {:.6e} with {dof} degrees of freedom (sqrt(chi^2/dof) = {:.4})",
+            outcome.termination,
+            outcome.evaluations,
+            outcome.initial_chi_squared,
+            outcome.chi_squared,
+            (outcome.chi_squared / dof.max(1) as f64).sqrt()
+        ),
+        "standard errors: sqrt(diag(s^2 (J^T W J)^-1)), s^2 = chi^2/dof; derivatives by Hellmann-Feynman".into(),
+    ];
+    for iso in isotopologues {
+        notes.push(format!(
+            "isotopologue {}{}: reduced mass {:.9} u",
+            iso.label,
+            iso.tag
+                .as_ref()
+                .map_or(String::new(), |t| format!(" (tag '{t}')")),
+            crate::units::to_dalton(iso.reduced_mass)
+        ));
+    }
+    notes.extend(outcome.warnings.iter().map(|w| format!("WARNING: {w}")));
+    Table {
+        title: if outcome.converged {
+            "fitted curve parameters".into()
+        } else {
+            "curve parameters: FIT NOT CONVERGED (last values)".into()
+        },
+        columns: vec![
+            Column::new("parameter", 0),
+            Column::new("unit", 0),
+            Column::new("initial", 8),
+            Column::new("fitted", 10),
+            Column::new("standard_error", 3),
+            Column::new("varied", 0),
+        ],
+        rows,
+        notes,
+    }
+}
+
+/// Correlation coefficients between the varied parameters.
+pub fn correlation_table(outcome: &crate::fit::FitOutcome) -> Table {
+    let names: Vec<&str> = outcome
+        .parameters
+        .iter()
+        .filter(|p| p.varied)
+        .map(|p| p.name)
+        .collect();
+    let rows = names
+        .iter()
+        .zip(&outcome.correlation)
+        .map(|(name, row)| {
+            std::iter::once(Cell::Text(name.to_string()))
+                .chain(row.iter().map(|&c| Cell::Number(c)))
+                .collect()
+        })
+        .collect();
+    Table {
+        title: "correlation of the varied parameters".into(),
+        columns: std::iter::once(Column::new("parameter", 0))
+            .chain(names.iter().map(|n| Column::new(*n, 4)))
+            .collect(),
+        rows,
+        notes: Vec::new(),
     }
 }
