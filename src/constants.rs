@@ -41,9 +41,76 @@ pub enum FitError {
     Singular,
 }
 
-/// Least-squares polynomial of the given order through (x, y).
+/// A linear least-squares solution of A c ~ y.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LinearFit {
+    pub coefficients: Vec<f64>,
+    /// s^2 (A^T A)^-1 with s^2 = RSS / (N - P) (zero when N = P: an exact fit).
+    pub covariance: Vec<Vec<f64>>,
+    /// Residual sum of squares.
+    pub rss: f64,
+}
+
+impl LinearFit {
+    pub fn standard_errors(&self) -> Vec<f64> {
+        (0..self.coefficients.len())
+            .map(|k| self.covariance[k][k].sqrt())
+            .collect()
+    }
+}
+
+/// Solve A c ~ y by QR (faer), with the covariance from the residual variance and
+/// (A^T A)^-1 = R^-1 R^-T. Also the covariance of a nonlinear fit at its minimum when A is
+/// the Jacobian there (the Gauss-Newton linearisation; common practice).
 // The triangular inverse below reads best with explicit indices.
 #[allow(clippy::needless_range_loop)]
+pub fn linear_least_squares(design: &Mat<f64>, y: &[f64]) -> Result<LinearFit, FitError> {
+    let (n, terms) = (design.nrows(), design.ncols());
+    let rhs = Mat::from_fn(n, 1, |i, _| y[i]);
+    let qr = design.qr();
+    let solution = qr.solve_lstsq(&rhs);
+    let coefficients: Vec<f64> = (0..terms).map(|k| solution[(k, 0)]).collect();
+    let r = qr.thin_R();
+    let largest = (0..terms).fold(0.0f64, |m, k| m.max(r[(k, k)].abs()));
+    if coefficients.iter().any(|c| !c.is_finite())
+        || (0..terms).any(|k| r[(k, k)].abs() <= 1e-13 * largest)
+    {
+        return Err(FitError::Singular);
+    }
+    let rss: f64 = (0..n)
+        .map(|i| {
+            let model: f64 = (0..terms).map(|k| design[(i, k)] * coefficients[k]).sum();
+            (y[i] - model).powi(2)
+        })
+        .sum();
+    let variance = if n > terms {
+        rss / (n - terms) as f64
+    } else {
+        0.0
+    };
+    let mut r_inv = vec![vec![0.0; terms]; terms];
+    for col in 0..terms {
+        for row in (0..=col).rev() {
+            let identity = if row == col { 1.0 } else { 0.0 };
+            let sum: f64 = (row + 1..=col).map(|k| r[(row, k)] * r_inv[k][col]).sum();
+            r_inv[row][col] = (identity - sum) / r[(row, row)];
+        }
+    }
+    let covariance = (0..terms)
+        .map(|a| {
+            (0..terms)
+                .map(|b| variance * (0..terms).map(|j| r_inv[a][j] * r_inv[b][j]).sum::<f64>())
+                .collect()
+        })
+        .collect();
+    Ok(LinearFit {
+        coefficients,
+        covariance,
+        rss,
+    })
+}
+
+/// Least-squares polynomial of the given order through (x, y).
 pub fn polynomial_fit(x: &[f64], y: &[f64], order: usize) -> Result<PolynomialFit, FitError> {
     let terms = order + 1;
     let n = x.len();
@@ -57,55 +124,20 @@ pub fn polynomial_fit(x: &[f64], y: &[f64], order: usize) -> Result<PolynomialFi
     // Scale x to [-1, 1]-ish for conditioning; unscale the coefficients afterwards.
     let scale = x.iter().fold(0.0f64, |m, v| m.max(v.abs())).max(1e-300);
     let design = Mat::from_fn(n, terms, |i, k| (x[i] / scale).powi(k as i32));
-    let rhs = Mat::from_fn(n, 1, |i, _| y[i]);
-    let qr = design.qr();
-    let solution = qr.solve_lstsq(&rhs);
-    let scaled: Vec<f64> = (0..terms).map(|k| solution[(k, 0)]).collect();
-    if scaled.iter().any(|c| !c.is_finite()) {
-        return Err(FitError::Singular);
-    }
-    let residuals: Vec<f64> = (0..n)
-        .map(|i| {
-            y[i] - (0..terms)
-                .map(|k| scaled[k] * (x[i] / scale).powi(k as i32))
-                .sum::<f64>()
-        })
-        .collect();
-    let rss: f64 = residuals.iter().map(|r| r * r).sum();
-    let variance = if n > terms {
-        rss / (n - terms) as f64
-    } else {
-        0.0
-    };
-    // (A^T A)^-1 = R^-1 R^-T; invert the small upper-triangular R by back substitution.
-    let r = qr.thin_R();
-    let mut r_inv = vec![vec![0.0; terms]; terms];
-    for col in 0..terms {
-        for row in (0..=col).rev() {
-            let identity = if row == col { 1.0 } else { 0.0 };
-            let sum: f64 = (row + 1..=col).map(|k| r[(row, k)] * r_inv[k][col]).sum();
-            r_inv[row][col] = (identity - sum) / r[(row, row)];
-        }
-    }
-    let standard_errors = (0..terms)
-        .map(|k| {
-            let diagonal: f64 = (0..terms).map(|j| r_inv[k][j] * r_inv[k][j]).sum();
-            (variance * diagonal).sqrt() / scale.powi(k as i32)
-        })
-        .collect();
+    let fit = linear_least_squares(&design, y)?;
+    let errors = fit.standard_errors();
     Ok(PolynomialFit {
-        coefficients: scaled
-            .iter()
-            .enumerate()
-            .map(|(k, c)| c / scale.powi(k as i32))
+        coefficients: (0..terms)
+            .map(|k| fit.coefficients[k] / scale.powi(k as i32))
             .collect(),
-        standard_errors,
-        rms_residual: (rss / n as f64).sqrt(),
+        standard_errors: (0..terms)
+            .map(|k| errors[k] / scale.powi(k as i32))
+            .collect(),
+        rms_residual: (fit.rss / n as f64).sqrt(),
         points: n,
     })
 }
 
-/// Vibrational spacings Delta G(v+1/2) = G(v+1) - G(v) and second differences
 /// Delta^2 G(v+1) = Delta G(v+3/2) - Delta G(v+1/2), hartree.
 pub fn spacings(set: &LevelSet) -> (Vec<f64>, Vec<f64>) {
     let first: Vec<f64> = set

@@ -14,7 +14,7 @@
 //!
 //! Several isotopologues share one curve: each measured line's tag names its isotopologue,
 //! which carries its own reduced mass. Standard errors are the square roots of the diagonal
-//! of s^2 (J^T W J)^-1 with s^2 = chi^2 / (N - P), the usual scaling by the dimensionless
+//! of s^2 (J^T W J)^-1 (by QR of the weighted Jacobian, [`crate::constants::linear_least_squares`]) with s^2 = chi^2 / (N - P), the usual scaling by the dimensionless
 //! variance (for example P.R. Bevington and D.K. Robinson, *Data Reduction and Error Analysis
 //! for the Physical Sciences*, ch. 8; common practice), so errors grow when the data scatter
 //! more than their stated uncertainties claim. Trial steps where the curve cannot be built or a
@@ -426,9 +426,8 @@ pub fn fit(
     let data = problem.fitted.len();
     let degrees_of_freedom = data - setup.varied.len();
     let mut warnings = Vec::new();
-    let (errors, correlation) = covariance(&problem, final_chi_squared, degrees_of_freedom)
-        .unwrap_or_else(|| {
-            warnings.push("the data do not determine the varied parameters independently (J^T W J is singular): standard errors are not available; vary fewer parameters".into());
+    let (errors, correlation) = covariance(&problem).unwrap_or_else(|| {
+            warnings.push("standard errors are not available: the data do not determine the varied parameters independently (J^T W J is singular), or there are no more data than parameters; vary fewer parameters or add data".into());
             let n = setup.varied.len();
             (vec![f64::NAN; n], vec![vec![f64::NAN; n]; n])
         });
@@ -497,28 +496,26 @@ fn chi_squared(problem: &Problem) -> f64 {
         .map_or(f64::INFINITY, |r| r.iter().map(|x| x * x).sum())
 }
 
-/// Standard errors and correlations from s^2 (J^T J)^-1 (J already weighted by 1/u).
-fn covariance(
-    problem: &Problem,
-    chi_squared: f64,
-    degrees_of_freedom: usize,
-) -> Option<(Vec<f64>, Vec<Vec<f64>>)> {
+/// Standard errors and correlations from s^2 (J^T J)^-1 (J already weighted by 1/u), as the
+/// covariance of the linearised problem at the minimum; None when J^T J is singular or no
+/// degree of freedom is left.
+fn covariance(problem: &Problem) -> Option<(Vec<f64>, Vec<Vec<f64>>)> {
     let jacobian = problem.jacobian()?;
-    let normal = jacobian.transpose() * &jacobian;
-    let inverse = normal.cholesky()?.inverse();
-    let variance = if degrees_of_freedom > 0 {
-        chi_squared / degrees_of_freedom as f64
-    } else {
-        1.0
-    };
-    let n = inverse.nrows();
-    let errors: Vec<f64> = (0..n)
-        .map(|k| (variance * inverse[(k, k)]).sqrt())
-        .collect();
-    let correlation = (0..n)
-        .map(|a| {
-            (0..n)
-                .map(|b| inverse[(a, b)] / (inverse[(a, a)] * inverse[(b, b)]).sqrt())
+    let residuals = problem.residual_values()?;
+    if residuals.len() <= jacobian.ncols() {
+        return None;
+    }
+    let design = faer::Mat::from_fn(jacobian.nrows(), jacobian.ncols(), |i, k| jacobian[(i, k)]);
+    let linear = crate::constants::linear_least_squares(&design, &residuals).ok()?;
+    let errors = linear.standard_errors();
+    let correlation = linear
+        .covariance
+        .iter()
+        .enumerate()
+        .map(|(a, row)| {
+            row.iter()
+                .enumerate()
+                .map(|(b, c)| c / (errors[a] * errors[b]))
                 .collect()
         })
         .collect();

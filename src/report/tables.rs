@@ -437,53 +437,72 @@ pub fn dissociation_table(
     units: DisplayUnits,
 ) -> Table {
     let eu = units.energy.name;
+    let energy_unit = || Cell::Text(eu.into());
+    let plain = || Cell::Text(String::new());
+    let optional = |x: f64| {
+        if x.is_finite() {
+            Cell::Number(x)
+        } else {
+            Cell::Missing
+        }
+    };
+    let energy_error = |x: f64| optional(units.energy.from_atomic(x));
     let mut rows = vec![
         vec![
             Cell::Text("power_n".into()),
             Cell::Number(fit.power),
-            Cell::Text(String::new()),
+            Cell::Missing,
+            plain(),
         ],
         vec![
             Cell::Text("limit".into()),
             units.e(fit.limit),
-            Cell::Text(eu.into()),
+            energy_error(fit.limit_error),
+            energy_unit(),
         ],
         vec![
             Cell::Text("v_at_limit".into()),
             Cell::Number(fit.v_at_limit),
-            Cell::Text(String::new()),
+            optional(fit.v_at_limit_error),
+            plain(),
         ],
         vec![
             Cell::Text(format!("C_{}", fit.power)),
             Cell::Number(fit.dispersion_coefficient),
+            optional(fit.dispersion_coefficient_error),
             Cell::Text(format!("hartree bohr^{}", fit.power)),
         ],
         vec![
             Cell::Text("fit_rms".into()),
             units.e(fit.rms_residual),
-            Cell::Text(eu.into()),
+            Cell::Missing,
+            energy_unit(),
         ],
         vec![
             Cell::Text("levels_used".into()),
             Cell::Integer(used as i64),
-            Cell::Text(String::new()),
+            Cell::Missing,
+            plain(),
         ],
         vec![
             Cell::Text("bound_levels_leroy_bernstein".into()),
             Cell::Integer(fit.bound_levels.into()),
-            Cell::Text(String::new()),
+            Cell::Missing,
+            plain(),
         ],
         vec![
             Cell::Text("bound_levels_solver".into()),
             Cell::Integer(solver_count as i64),
-            Cell::Text(String::new()),
+            Cell::Missing,
+            plain(),
         ],
     ];
-    for (v, binding) in &fit.predicted {
+    for level in &fit.predicted {
         rows.push(vec![
-            Cell::Text(format!("predicted_binding_v{v}")),
-            units.e(*binding),
-            Cell::Text(eu.into()),
+            Cell::Text(format!("predicted_binding_v{}", level.v)),
+            units.e(level.binding),
+            energy_error(level.binding_error),
+            energy_unit(),
         ]);
     }
     let verdict = if fit.bound_levels as usize == solver_count {
@@ -501,12 +520,14 @@ pub fn dissociation_table(
         columns: vec![
             Column::new("quantity", 0),
             Column::new("value", 8),
+            Column::new("standard_error", 3),
             Column::new("unit", 0),
         ],
         rows,
         notes: vec![
             verdict,
-            "no uncertainties are attached to the fitted values yet".into(),
+            "standard errors: the fit's own (s^2 (J^T J)^-1 in D, v_D, H_n) and the change when the deepest level used is left out, in quadrature; they are a LOWER BOUND: the LeRoy-Bernstein form is exact only at the limit, and on a Lennard-Jones test the predicted binding energies were off by 4-10 of these errors".into(),
+            "the v_at_limit error tells how sure the count floor(v_D) + 1 is: within about one standard error of an integer, a level may be gained or lost".into(),
         ],
     }
 }
