@@ -235,6 +235,11 @@ struct NearLimitArgs {
     /// How many of the highest levels to fit (at least 4).
     #[arg(long, default_value_t = 6)]
     top: usize,
+    /// Fit measured levels instead (CSV as for compare; the levels of the lowest J in the
+    /// file). The curve, if given, supplies the molecule, the power and the solver's count
+    /// beside; without one, give --atoms and --power.
+    #[arg(long)]
+    measured: Option<PathBuf>,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -646,37 +651,75 @@ fn fit(args: FitArgs) -> Result<ExitCode> {
 }
 
 fn near_limit(args: NearLimitArgs) -> Result<ExitCode> {
-    let setup = load_curve(&args.curve)?;
     let units = display_units(&args.output)?;
+    let has_curve = args.curve.curve.is_some() || args.curve.model.is_some();
+    let setup = has_curve.then(|| load_curve(&args.curve)).transpose()?;
+    let pair = match (&setup, &args.curve.atoms) {
+        (Some(setup), _) => setup.pair.clone(),
+        (None, Some(atoms)) => {
+            let atom = |text: &str| {
+                rungs::masses::Atom::parse(text).map_err(|e| bad_input(format!("--atoms: {e}")))
+            };
+            rungs::masses::Pair::new(
+                atom(&atoms[0])?,
+                atom(&atoms[1])?,
+                args.curve.charge.unwrap_or(0),
+            )
+        }
+        (None, None) => bail!(bad_input(
+            "give a curve (file or --model), or --measured with --atoms and --power"
+        )),
+    };
+    let source = setup
+        .as_ref()
+        .map_or_else(|| "--measured".to_string(), |s| s.source.clone());
     let power = args
         .power
-        .or(setup.curve.long_range_power())
+        .or(setup.as_ref().and_then(|s| s.curve.long_range_power()))
         .ok_or_else(|| {
             bad_input(format!(
-                "{}: the curve has no inverse-power tail; give --power n",
-                setup.source
+                "{source}: no inverse-power tail is known; give --power n"
             ))
         })?;
-    let mu = setup.pair.reduced_mass();
-    let set = solver::solve(
-        &RadialProblem::new(setup.curve.as_ref(), mu, 0),
-        &SolverSettings::default(),
-    )
-    .map_err(|e| solver_failure(&setup.source, e))?;
-    let top: Vec<(u32, f64)> = set
-        .levels
-        .iter()
-        .rev()
-        .take(args.top)
-        .map(|l| (l.v, l.energy))
-        .collect();
-    let fit = rungs::dissociation::leroy_bernstein(&top, power, mu)
-        .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
+    let mu = pair.reduced_mass();
+    let solved = setup
+        .as_ref()
+        .map(|setup| {
+            solver::solve(
+                &RadialProblem::new(setup.curve.as_ref(), mu, 0),
+                &SolverSettings::default(),
+            )
+            .map_err(|e| solver_failure(&setup.source, e))
+        })
+        .transpose()?;
+    let mut levels: Vec<(u32, f64)> = match (&args.measured, &solved) {
+        (Some(path), _) => {
+            let measured = read_measured(path)?;
+            if measured.iter().any(|m| m.lower.is_some()) {
+                bail!(bad_input(format!(
+                    "{}: near-limit needs level energies, not transitions",
+                    path.display()
+                )));
+            }
+            let lowest_j = measured.iter().map(|m| m.j).min().unwrap_or(0);
+            measured
+                .iter()
+                .filter(|m| m.j == lowest_j)
+                .map(|m| (m.v, m.energy))
+                .collect()
+        }
+        (None, Some(set)) => set.levels.iter().map(|l| (l.v, l.energy)).collect(),
+        (None, None) => unreachable!("a curve or measured levels were required above"),
+    };
+    levels.sort_by(|a, b| b.1.total_cmp(&a.1));
+    levels.truncate(args.top);
+    let fit = rungs::dissociation::leroy_bernstein(&levels, power, mu)
+        .map_err(|e| bad_input(format!("{source}: {e}")))?;
     let table = rungs::report::tables::dissociation_table(
         &fit,
-        top.len(),
-        set.levels.len(),
-        &setup.pair,
+        levels.len(),
+        solved.as_ref().map(|set| set.levels.len()),
+        &pair,
         units,
     );
     print_table(&table, &args.output)?;

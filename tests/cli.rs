@@ -147,6 +147,28 @@ fn near_limit_on_the_demo_points() {
         value("bound_levels_leroy_bernstein"),
         value("bound_levels_solver")
     );
+    // The same from a file of (invented) measured levels, with no curve: the molecule from
+    // --atoms, the power from --power. The file holds the curve's top levels, so the count
+    // and C6 must agree with the curve's.
+    let (code, measured, stderr) = run(&[
+        "near-limit",
+        "--measured",
+        "curves/demo_near_limit_levels.csv",
+        "--atoms",
+        "39K",
+        "133Cs",
+        "--power",
+        "6",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let from_file = |name: &str| csv_value(&measured, name);
+    assert_eq!(
+        from_file("bound_levels_leroy_bernstein"),
+        value("bound_levels_solver")
+    );
+    assert!(((from_file("C_6") - c6) / c6).abs() < 0.05);
 }
 
 /// The parameter rows of the JSON parameters table of `rungs fit`.

@@ -432,7 +432,7 @@ pub fn comparison_table(
 pub fn dissociation_table(
     fit: &crate::dissociation::LeRoyBernstein,
     used: usize,
-    solver_count: usize,
+    solver_count: Option<usize>,
     pair: &Pair,
     units: DisplayUnits,
 ) -> Table {
@@ -490,13 +490,15 @@ pub fn dissociation_table(
             Cell::Missing,
             plain(),
         ],
-        vec![
+    ];
+    if let Some(count) = solver_count {
+        rows.push(vec![
             Cell::Text("bound_levels_solver".into()),
-            Cell::Integer(solver_count as i64),
+            Cell::Integer(count as i64),
             Cell::Missing,
             plain(),
-        ],
-    ];
+        ]);
+    }
     for level in &fit.predicted {
         rows.push(vec![
             Cell::Text(format!("predicted_binding_v{}", level.v)),
@@ -505,12 +507,14 @@ pub fn dissociation_table(
             energy_unit(),
         ]);
     }
-    let verdict = if fit.bound_levels as usize == solver_count {
-        "the LeRoy-Bernstein count agrees with the solver's".to_string()
-    } else {
-        format!(
-            "the counts differ: trust the solver's {solver_count} (an exact Sturm count on the curve itself, stable when its box is doubled); the LeRoy-Bernstein estimate assumes the pure -C_n/r^n form reaches down to the levels used"
-        )
+    let verdict = match solver_count {
+        None => "fitted to measured levels; no curve was given to count its levels".to_string(),
+        Some(count) if fit.bound_levels as usize == count => {
+            "the LeRoy-Bernstein count agrees with the solver's".to_string()
+        }
+        Some(count) => format!(
+            "the counts differ: trust the solver's {count} (an exact Sturm count on the curve itself, stable when its box is doubled); the LeRoy-Bernstein estimate assumes the pure -C_n/r^n form reaches down to the levels used"
+        ),
     };
     Table {
         title: format!(
