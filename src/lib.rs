@@ -4,10 +4,11 @@
 //! potential-energy curves.
 //!
 //! Data flow, one way: [`reader`] (curve files, points, analytic models, units, masses) ->
-//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`compare`], [`dissociation`], [`fit`]) -> [`report`] (tables,
+//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`bands`], [`compare`], [`dissociation`], [`fit`]) -> [`report`] (tables,
 //! CSV, JSON). Each stage knows nothing of the stages after it. Inside the library every number
 //! is in Hartree atomic units (see [`units`]).
 
+pub mod bands;
 pub mod compare;
 pub mod constants;
 pub mod curve;

@@ -38,6 +38,10 @@ pub mod codata {
     pub const ELECTRON_MASS_IN_U: f64 = physical_constants::ELECTRON_MASS_IN_U;
     /// Atomic unit of electric dipole moment (e a_0), C m.
     pub const DIPOLE_AU: f64 = physical_constants::ATOMIC_UNIT_OF_ELECTRIC_DIPOLE_MOM;
+    /// Atomic unit of time (hbar / E_h), s.
+    pub const TIME_AU: f64 = physical_constants::ATOMIC_UNIT_OF_TIME;
+    /// Fine-structure constant alpha; the speed of light is 1/alpha in atomic units.
+    pub const FINE_STRUCTURE: f64 = physical_constants::FINE_STRUCTURE_CONSTANT;
 }
 
 /// Hartree per cm^-1.

@@ -5,11 +5,13 @@
 //! knows nothing of files, masses, solvers or reports.
 
 mod adjust;
+mod dipole;
 mod models;
 mod spline;
 mod tabulated;
 
 pub use adjust::{Adjusted, CurveParameter, ParameterError};
+pub use dipole::DipoleFunction;
 pub use models::{Harmonic, LennardJones, Morse};
 pub use spline::{CubicSpline, SplineEnd};
 pub use tabulated::{InnerWall, JoinReport, OuterTail, TabulatedCurve, TabulatedError};

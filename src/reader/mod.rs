@@ -38,11 +38,14 @@
 //!
 //! [`fitted_curve_file`] writes a curve file back with new parameter values.
 
+mod dipole;
 mod measured;
 mod points;
 
+pub use dipole::{parse_dipole_toml, read_dipole_file};
+
 pub use measured::{parse_measured, MeasuredLevel};
-pub use points::{parse_points, PointTable};
+pub use points::{parse_function_points, parse_points, PointTable};
 
 use crate::curve::{
     Adjusted, Harmonic, InnerWall, JoinReport, LennardJones, Morse, OuterTail, PotentialCurve,

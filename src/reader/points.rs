@@ -29,6 +29,7 @@ fn header_unit(
 ) -> Result<&'static Unit, InputError> {
     let example = match dimension {
         Dimension::Length => "r_angstrom",
+        Dimension::DipoleMoment => "dipole_debye",
         _ => "energy_cm-1",
     };
     let unit_text = cell.split_once('_').map(|(_, u)| u).ok_or_else(|| {
@@ -45,22 +46,36 @@ fn header_unit(
         .map_err(|e| InputError::at(file, line, format!("header cell '{cell}': {e}")))
 }
 
-/// Parse the text of a points file. `file` names it in messages.
+/// Parse the text of a points file (r and energy). `file` names it in messages.
 pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
-    let ((header_line, header), rows) = super::data_lines(text, file, "r_angstrom,energy_cm-1")?;
+    parse_function_points(text, file, Dimension::Energy)
+}
+
+/// Parse a two-column table of r and a function of r of the given dimension (an energy for
+/// curves, a dipole moment for dipole functions), units in the header.
+pub fn parse_function_points(
+    text: &str,
+    file: &str,
+    dimension: Dimension,
+) -> Result<PointTable, InputError> {
+    let example = match dimension {
+        Dimension::DipoleMoment => "r_angstrom,dipole_debye",
+        _ => "r_angstrom,energy_cm-1",
+    };
+    let ((header_line, header), rows) = super::data_lines(text, file, example)?;
     let cells: Vec<&str> = header.split(',').map(str::trim).collect();
     if cells.len() != 2 {
         return Err(InputError::at(
             file,
             header_line,
             format!(
-                "the header has {} columns; it needs exactly two, r and energy, for example 'r_angstrom,energy_cm-1'",
+                "the header has {} columns; it needs exactly two, r and the {dimension}, for example '{example}'",
                 cells.len()
             ),
         ));
     }
     let r_unit = header_unit(cells[0], Dimension::Length, file, header_line)?;
-    let v_unit = header_unit(cells[1], Dimension::Energy, file, header_line)?;
+    let v_unit = header_unit(cells[1], dimension, file, header_line)?;
     let mut points: Vec<(f64, f64, usize)> = Vec::new();
     for (line, row) in rows {
         let cells: Vec<&str> = row.split(',').map(str::trim).collect();
@@ -69,7 +84,7 @@ pub fn parse_points(text: &str, file: &str) -> Result<PointTable, InputError> {
                 file,
                 line,
                 format!(
-                    "expected 2 comma-separated numbers (r, energy), found {} cells",
+                    "expected 2 comma-separated numbers (r, {dimension}), found {} cells",
                     cells.len()
                 ),
             ));

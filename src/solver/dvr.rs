@@ -19,7 +19,7 @@ use faer::{Mat, Side};
 /// Largest matrix the reference path will build.
 pub const MAX_DVR_POINTS: usize = 6000;
 /// Points per local wavelength at the bottom of the well (sinc-DVR needs more than 2).
-const DVR_POINTS_PER_WAVELENGTH: f64 = 4.0;
+pub(super) const DVR_POINTS_PER_WAVELENGTH: f64 = 4.0;
 
 struct DvrSolution {
     energies: Vec<f64>,

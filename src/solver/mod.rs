@@ -19,6 +19,9 @@ mod dvr;
 pub mod grid;
 pub mod mapping;
 pub mod numerov;
+mod shared;
+
+pub use shared::{solve_on_shared_grid, SharedLevels};
 
 use crate::curve::{find_well_with, turning_points_with, PotentialCurve, ShapeError};
 use crate::units::from_wavenumber;
