@@ -23,9 +23,12 @@ fn shared(
     (solved.pop().unwrap(), lower)
 }
 
+/// case, omega1, omega2, d, m, n, closed form (if any), quadrature.
+type ReferenceRow = (String, f64, f64, f64, u32, u32, Option<f64>, f64);
+
 /// Rows of tests/data/fc_displaced_harmonic.csv (copied from the shared reference collection;
 /// closed form exp(-S) S^(n-m) (m!/n!) [L_m^(n-m)(S)]^2 from standard texts, and quadrature).
-fn reference_rows() -> Vec<(String, f64, f64, f64, u32, u32, Option<f64>, f64)> {
+fn reference_rows() -> Vec<ReferenceRow> {
     std::fs::read_to_string("tests/data/fc_displaced_harmonic.csv")
         .unwrap()
         .lines()
