@@ -3,6 +3,8 @@
 //! Exit codes: 0 success; 1 a numerical failure; 2 bad input or usage; 3 results were printed
 //! but at least one level missed the tolerance (marked in the output).
 
+mod band_commands;
+
 use anyhow::{bail, Context, Result};
 use clap::{Args, Parser, Subcommand};
 use rungs::reader::{self, CurveSetup, PairOverride};
@@ -63,6 +65,18 @@ enum Command {
         after_help = "Examples:\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width,r_e --write-curve fitted.toml\n  rungs fit curves/demo_morse.toml --measured lines.csv --vary well_depth,width --isotopologue 6LiF=6Li,19F\n\nParameters: morse well_depth, width, r_e; harmonic force_constant, r_e; lennard-jones\nwell_depth, r_e; points depth_scale, r_shift (V = L + s [V_table(r - d) - L])."
     )]
     Fit(FitArgs),
+    /// Franck-Condon factors, overlaps, r-centroids and band origins between two curves, and
+    /// with a transition-moment function Einstein A coefficients and lifetimes.
+    #[command(
+        after_help = "Examples:\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1'\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --v-upper 0-6 --v-lower 0-2 --moment curves/demo_transition_moment.toml --format csv"
+    )]
+    FranckCondon(band_commands::FranckCondonArgs),
+    /// Infrared bands within one curve from a dipole-moment function: transition moments,
+    /// Einstein A coefficients, oscillator strengths and lifetimes.
+    #[command(
+        after_help = "Examples:\n  rungs dipole curves/demo_morse.toml --dipole curves/demo_dipole.toml\n  rungs dipole curves/demo_morse.toml --dipole curves/demo_dipole.toml --v-upper 1-4 --v-lower 0 --format json\n\nDipole file (TOML):\n  [dipole]\n  form = \"polynomial\"        # mu(r) = sum_k c_k (r - r_ref)^k\n  r_ref = \"1.56 angstrom\"\n  unit = \"debye\"\n  length_unit = \"angstrom\"   # c_k in debye / angstrom^k\n  coefficients = [6.3, 2.0, -0.5]\nor form = \"points\" with file = \"points.csv\" (header r_angstrom,dipole_debye)."
+    )]
+    Dipole(band_commands::DipoleArgs),
 }
 
 #[derive(Args)]
@@ -324,17 +338,22 @@ fn inspect(args: InspectArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-fn j_values(text: &str) -> Result<(u32, u32)> {
+/// A quantum number or an inclusive range such as 0-10, from option `option`.
+fn quantum_range(text: &str, option: &str) -> Result<(u32, u32)> {
     let parse = |t: &str| {
-        t.trim()
-            .parse::<u32>()
-            .map_err(|_| bad_input(format!("--j: '{text}' is not a J or a range such as 0-10")))
+        t.trim().parse::<u32>().map_err(|_| {
+            bad_input(format!(
+                "{option}: '{text}' is not a number or a range such as 0-10"
+            ))
+        })
     };
     match text.split_once('-') {
         Some((a, b)) => {
             let (a, b) = (parse(a)?, parse(b)?);
             if a > b {
-                bail!(bad_input(format!("--j: the range {text} runs backwards")));
+                bail!(bad_input(format!(
+                    "{option}: the range {text} runs backwards"
+                )));
             }
             Ok((a, b))
         }
@@ -436,7 +455,7 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
         bar.finish_and_clear();
         sets = result.map_err(|e| solver_failure(&setup.source, e))?;
     } else {
-        let (first, last) = j_values(&args.j)?;
+        let (first, last) = quantum_range(&args.j, "--j")?;
         for j in first..=last {
             match solve_j(j) {
                 Ok(set) => sets.push(set),
@@ -479,9 +498,7 @@ fn constants(args: ConstantsArgs) -> Result<ExitCode> {
     let top = set.levels.last().map_or(0, |l| l.v);
     let range = match &args.v_range {
         Some(text) => {
-            let (a, b) = j_values(text).map_err(|_| {
-                bad_input(format!("--v-range: '{text}' is not a range such as 0-10"))
-            })?;
+            let (a, b) = quantum_range(text, "--v-range")?;
             if a > top {
                 return Err(bad_input(format!(
                     "--v-range {text}: the curve binds v = 0..{top} only"
@@ -735,6 +752,8 @@ fn main() -> ExitCode {
         Command::Compare(args) => compare(args),
         Command::NearLimit(args) => near_limit(args),
         Command::Fit(args) => fit(args),
+        Command::FranckCondon(args) => band_commands::franck_condon(args),
+        Command::Dipole(args) => band_commands::dipole(args),
     };
     match result {
         Ok(code) => code,

@@ -273,3 +273,110 @@ fn fit_refusals() {
     assert!(stdout.contains("FIT NOT CONVERGED"), "{stdout}");
     assert!(stderr.contains("did not converge"), "{stderr}");
 }
+
+#[test]
+fn franck_condon_and_dipole_on_the_demo_curves() {
+    // The invented demo curves: q sums over v' for v'' = 0 approach 1 when enough upper
+    // levels are listed (closure; common practice), and every band has an A coefficient.
+    let (code, stdout, stderr) = run(&[
+        "franck-condon",
+        "--lower",
+        "curves/demo_morse.toml",
+        "--upper",
+        "curves/demo_upper.toml",
+        "--term-energy",
+        "14000 cm-1",
+        "--v-upper",
+        "0-25",
+        "--v-lower",
+        "0",
+        "--moment",
+        "curves/demo_transition_moment.toml",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let rows = json[0]["rows"].as_array().unwrap();
+    let sum: f64 = rows
+        .iter()
+        .map(|r| r["franck_condon"].as_f64().unwrap())
+        .sum();
+    assert!((sum - 1.0).abs() < 1e-6, "{sum}");
+    assert!(rows
+        .iter()
+        .all(|r| r["einstein_A_s-1"].as_f64().unwrap() > 0.0));
+    // 0-0 origin: T_e + G'(0) - G''(0) = 14000 + 300 - 1.25 - (450 - 2.125) cm-1 from the
+    // Morse terms G(0) = omega_e/2 - omega_e x_e/4 of both (demo constants).
+    let origin = rows[0]["origin_cm-1"].as_f64().unwrap();
+    assert!(
+        (origin - (14000.0 + 298.75 - 447.875)).abs() < 1e-6,
+        "{origin}"
+    );
+
+    let (code, stdout, stderr) = run(&[
+        "dipole",
+        "curves/demo_morse.toml",
+        "--dipole",
+        "curves/demo_dipole.toml",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    assert!(stdout.starts_with("# infrared bands"), "{stdout}");
+    assert!(!stdout.contains("franck_condon"));
+}
+
+#[test]
+fn band_refusals() {
+    // Different nuclei.
+    let (code, _, stderr) = run(&[
+        "franck-condon",
+        "--lower",
+        "curves/demo_morse.toml",
+        "--upper",
+        "curves/h2_born_oppenheimer.toml",
+    ]);
+    assert_eq!(code, 2);
+    assert!(stderr.contains("different nuclei"), "{stderr}");
+    // A range beyond the bound levels.
+    let (code, _, stderr) = run(&[
+        "franck-condon",
+        "--lower",
+        "curves/demo_morse.toml",
+        "--upper",
+        "curves/demo_upper.toml",
+        "--v-upper",
+        "0-500",
+    ]);
+    assert_eq!(code, 2);
+    assert!(stderr.contains("binds v = 0.."), "{stderr}");
+    // Homonuclear: infrared-inactive by symmetry, said plainly.
+    let (code, _, stderr) = run(&[
+        "dipole",
+        "curves/h2_born_oppenheimer.toml",
+        "--dipole",
+        "curves/demo_dipole.toml",
+    ]);
+    assert_eq!(code, 2);
+    assert!(stderr.contains("infrared-inactive"), "{stderr}");
+    // A dipole function in an unknown unit.
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("bad_dipole.toml");
+    std::fs::write(
+        &bad,
+        "[dipole]\nr_ref = \"1.5 angstrom\"\nunit = \"statC cm\"\ncoefficients = [1.0]\n",
+    )
+    .unwrap();
+    let (code, _, stderr) = run(&[
+        "dipole",
+        "curves/demo_morse.toml",
+        "--dipole",
+        bad.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 2);
+    assert!(
+        stderr.contains("line 3") && stderr.contains("debye"),
+        "{stderr}"
+    );
+}

@@ -121,17 +121,18 @@ pub fn parse_dipole_toml(
                         .iter()
                         .enumerate()
                         .map(|(k, item)| {
-                            let value =
-                                match item {
-                                    toml::Value::Integer(i) => *i as f64,
-                                    toml::Value::Float(x) if x.is_finite() => *x,
-                                    other => return Err(error(
+                            let value = match item {
+                                toml::Value::Integer(i) => *i as f64,
+                                toml::Value::Float(x) if x.is_finite() => *x,
+                                other => {
+                                    return Err(error(
                                         "coefficients",
                                         format!(
                                             "coefficient {k} must be a plain number, found {other}"
                                         ),
-                                    )),
-                                };
+                                    ))
+                                }
+                            };
                             // c_k in unit / length_unit^k -> e a_0 / bohr^k.
                             Ok(dipole_unit.to_atomic(value)
                                 / length_unit.to_atomic(1.0).powi(k as i32))

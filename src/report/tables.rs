@@ -659,3 +659,126 @@ pub fn correlation_table(outcome: &crate::fit::FitOutcome) -> Table {
         notes: Vec::new(),
     }
 }
+
+/// q(v', v'') as a matrix for people: a row per v', a column per v'', and the sums.
+pub fn franck_condon_matrix(set: &crate::bands::BandSet, title: &str) -> Table {
+    let lower: Vec<u32> = set.lower_sums.iter().map(|s| s.0).collect();
+    let mut rows: Vec<Vec<Cell>> = set
+        .upper_sums
+        .iter()
+        .map(|&(v_upper, sum)| {
+            std::iter::once(Cell::Integer(v_upper.into()))
+                .chain(lower.iter().map(|&v_lower| {
+                    set.bands
+                        .iter()
+                        .find(|b| b.v_upper == v_upper && b.v_lower == v_lower)
+                        .map_or(Cell::Missing, |b| Cell::Number(b.franck_condon))
+                }))
+                .chain([Cell::Number(sum)])
+                .collect()
+        })
+        .collect();
+    rows.push(
+        std::iter::once(Cell::Text("sum".into()))
+            .chain(set.lower_sums.iter().map(|s| Cell::Number(s.1)))
+            .chain([Cell::Missing])
+            .collect(),
+    );
+    Table {
+        title: title.to_string(),
+        columns: std::iter::once(Column::new("v'", 0))
+            .chain(lower.iter().map(|v| Column::new(format!("v''={v}"), 5)))
+            .chain([Column::new("sum", 5)])
+            .collect(),
+        rows,
+        notes: vec![
+            "rows v' (upper), columns v'' (lower); q(v', v'') = |<v'|v''>|^2; the bottom row sums over the v' listed (1 when no overlap is left in unlisted or continuum levels)".into(),
+        ],
+    }
+}
+
+fn debye() -> &'static crate::units::Unit {
+    crate::units::parse_unit("debye", crate::units::Dimension::DipoleMoment)
+        .expect("debye is in the unit table")
+}
+
+/// Every band in long form: origins; between two curves overlaps, q and r-centroids (within
+/// one curve, where the levels are orthogonal, these are left out); with a dipole function,
+/// moments, A coefficients and oscillator strengths.
+pub fn bands_table(
+    set: &crate::bands::BandSet,
+    title: &str,
+    units: DisplayUnits,
+    between_curves: bool,
+) -> Table {
+    let (eu, lu) = (units.energy.name, units.length.name);
+    let with_moment = set.bands.iter().any(|b| b.moment.is_some());
+    let rows = set
+        .bands
+        .iter()
+        .map(|b| {
+            let mut row = vec![
+                Cell::Integer(b.v_upper.into()),
+                Cell::Integer(b.v_lower.into()),
+                units.e(b.origin),
+            ];
+            if between_curves {
+                row.push(Cell::Number(b.overlap));
+                row.push(Cell::Number(b.franck_condon));
+                row.push(units.opt_l(b.r_centroid));
+            }
+            if with_moment {
+                let number = |x: Option<f64>| x.map_or(Cell::Missing, Cell::Number);
+                row.push(number(b.moment.map(|m| debye().from_atomic(m))));
+                row.push(number(b.einstein_a));
+                row.push(number(b.oscillator_strength));
+            }
+            row
+        })
+        .collect();
+    let mut columns = vec![
+        Column::new("v_upper", 0),
+        Column::new("v_lower", 0),
+        Column::new(format!("origin_{eu}"), 4),
+    ];
+    if between_curves {
+        columns.push(Column::new("overlap", 6));
+        columns.push(Column::new("franck_condon", 6));
+        columns.push(Column::new(format!("r_centroid_{lu}"), 5));
+    }
+    if with_moment {
+        columns.push(Column::new("moment_debye", 6));
+        columns.push(Column::new("einstein_A_s-1", 4));
+        columns.push(Column::new("oscillator_strength", 4));
+    }
+    Table {
+        title: title.to_string(),
+        columns,
+        rows,
+        notes: vec![
+            "overlap signs follow the wavefunctions' convention (positive innermost lobe); r_centroid is blank where the overlap is below 1e-8".into(),
+            "rotationless (J' = J'' = 0) band values; A(v' -> v'') = 4 omega^3 |M|^2 / (3 c^3) (atomic units), f = (2/3) omega |M|^2".into(),
+        ],
+    }
+}
+
+/// Radiative lifetimes of the upper levels.
+pub fn lifetimes_table(set: &crate::bands::BandSet, lower_range: (u32, u32)) -> Table {
+    Table {
+        title: "radiative lifetimes".into(),
+        columns: vec![
+            Column::new("v_upper", 0),
+            Column::new("total_A_s-1", 4),
+            Column::new("lifetime_s", 4),
+        ],
+        rows: set
+            .lifetimes
+            .iter()
+            .map(|&(v, tau)| vec![Cell::Integer(v.into()), Cell::Number(1.0 / tau), Cell::Number(tau)])
+            .collect(),
+        notes: vec![format!(
+            "summed over the lower levels v'' = {}..{} computed; lower levels outside that range add to the rate",
+            lower_range.0, lower_range.1
+        )],
+    }
+}
