@@ -92,6 +92,31 @@ fn v_range(
     }
 }
 
+/// A curve file, with the atoms replaced when given.
+fn load_file(path: &std::path::Path, atoms: Option<Vec<String>>) -> Result<CurveSetup> {
+    load_curve(&CurveArgs {
+        curve: Some(path.to_path_buf()),
+        model: None,
+        atoms,
+        charge: None,
+    })
+}
+
+/// The shift of the upper energies: T_e - (V_upper,min - V_lower,min) with T_e given, else 0
+/// (the two curves on one absolute scale).
+fn term_offset(term_energy: Option<&str>, upper: &CurveSetup, lower: &CurveSetup) -> Result<f64> {
+    let Some(text) = term_energy else {
+        return Ok(0.0);
+    };
+    let t_e = quantity(text, Dimension::Energy, "--term-energy")?;
+    let minimum = |s: &CurveSetup| {
+        rungs::curve::find_well(s.curve.as_ref())
+            .map(|w| w.v_min)
+            .map_err(|e| bad_input(format!("{}: {e}", s.source)))
+    };
+    Ok(t_e - (minimum(upper)? - minimum(lower)?))
+}
+
 /// The highest bound v of a curve at J.
 fn highest_bound(setup: &CurveSetup, j: u32) -> Result<u32> {
     let problem = RadialProblem::new(setup.curve.as_ref(), setup.pair.reduced_mass(), j);
@@ -135,14 +160,7 @@ fn print(mut tables: Vec<Table>, notes: Vec<String>, output: &OutputArgs) -> Res
 
 pub fn franck_condon(args: FranckCondonArgs) -> Result<ExitCode> {
     let units = display_units(&args.output)?;
-    let load = |path: &PathBuf| {
-        load_curve(&CurveArgs {
-            curve: Some(path.clone()),
-            model: None,
-            atoms: args.atoms.clone(),
-            charge: None,
-        })
-    };
+    let load = |path: &PathBuf| load_file(path, args.atoms.clone());
     let (lower, upper) = (load(&args.lower)?, load(&args.upper)?);
     let mu = lower.pair.reduced_mass();
     if (upper.pair.reduced_mass() - mu).abs() > 1e-9 * mu {
@@ -170,18 +188,7 @@ pub fn franck_condon(args: FranckCondonArgs) -> Result<ExitCode> {
         .map(read_dipole_file)
         .transpose()
         .map_err(|e| bad_input(e.to_string()))?;
-    let offset = match &args.term_energy {
-        Some(text) => {
-            let t_e = quantity(text, Dimension::Energy, "--term-energy")?;
-            let minimum = |s: &CurveSetup| {
-                rungs::curve::find_well(s.curve.as_ref())
-                    .map(|w| w.v_min)
-                    .map_err(|e| bad_input(format!("{}: {e}", s.source)))
-            };
-            t_e - (minimum(&upper)? - minimum(&lower)?)
-        }
-        None => 0.0,
-    };
+    let offset = term_offset(args.term_energy.as_deref(), &upper, &lower)?;
     let mut solved = solve_on_shared_grid(
         &[
             (
@@ -283,5 +290,258 @@ pub fn dipole(args: DipoleArgs) -> Result<ExitCode> {
         tables.push(lifetimes_table(&set, (0, highest)));
     }
     print(tables, notes, &args.output)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+#[derive(Args)]
+pub struct SpectrumArgs {
+    /// The lower state's curve file.
+    #[arg(long)]
+    lower: PathBuf,
+    /// The upper state's curve file; without it, the infrared spectrum within the lower
+    /// curve (needs --dipole).
+    #[arg(long, requires = "term_energy")]
+    upper: Option<PathBuf>,
+    /// T_e of the upper curve above the lower, e.g. '14000 cm-1'.
+    #[arg(long)]
+    term_energy: Option<String>,
+    /// Electronic transition-moment function (else a constant moment: Franck-Condon factors).
+    #[arg(long, conflicts_with = "dipole")]
+    moment: Option<PathBuf>,
+    /// Dipole-moment function of the lower curve, for an infrared spectrum.
+    #[arg(long)]
+    dipole: Option<PathBuf>,
+    /// Temperature of the lower-state populations, e.g. '300 K'.
+    #[arg(long, default_value = "300 K")]
+    temperature: String,
+    /// Upper levels v' (default 0-5 electronic, 1-3 infrared).
+    #[arg(long)]
+    v_upper: Option<String>,
+    /// Lower levels v'' (default 0-1).
+    #[arg(long)]
+    v_lower: Option<String>,
+    /// Highest J'' (default: where the populations of v'' = 0 fall below 1e-5 of their peak).
+    #[arg(long)]
+    j_max: Option<u32>,
+    /// Lines weaker than this fraction of the strongest are left out.
+    #[arg(long, default_value_t = 1e-4)]
+    cutoff: f64,
+    /// Write the broadened profile (CSV, uniform in wavenumber) to this file.
+    #[arg(long, value_name = "FILE")]
+    profile: Option<PathBuf>,
+    /// Line shape of the profile.
+    #[arg(long, default_value = "gaussian", value_parser = ["gaussian", "lorentzian", "voigt"])]
+    shape: String,
+    /// Full width at half maximum (the Gaussian part for voigt), e.g. '0.5 cm-1'.
+    #[arg(long, default_value = "1 cm-1")]
+    fwhm: String,
+    /// The Lorentzian full width for voigt.
+    #[arg(long)]
+    lorentzian_fwhm: Option<String>,
+    /// Step of the profile's axis (default a tenth of the narrowest width).
+    #[arg(long)]
+    step: Option<String>,
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
+    use rungs::spectrum::{broaden, simulate, Profile};
+    let units = display_units(&args.output)?;
+    let load = |path: &PathBuf| load_file(path, None);
+    let lower = load(&args.lower)?;
+    let upper = args.upper.as_ref().map(load).transpose()?;
+    let mu = lower.pair.reduced_mass();
+    let infrared = upper.is_none();
+    if infrared && args.dipole.is_none() {
+        bail!(bad_input(
+            "an infrared spectrum (no --upper) needs --dipole FILE; an electronic one needs --upper and --term-energy"
+        ));
+    }
+    if infrared && lower.pair.is_homonuclear() {
+        bail!(bad_input(format!(
+            "{} is homonuclear: no infrared spectrum within one electronic state (the dipole vanishes by symmetry)",
+            lower.pair.label()
+        )));
+    }
+    if let Some(upper) = &upper {
+        if (upper.pair.reduced_mass() - mu).abs() > 1e-9 * mu {
+            bail!(bad_input(format!(
+                "the curves are for different nuclei: {} and {}",
+                lower.pair.label(),
+                upper.pair.label()
+            )));
+        }
+    }
+    let upper_setup = upper.as_ref().unwrap_or(&lower);
+    let function = args
+        .moment
+        .as_ref()
+        .or(args.dipole.as_ref())
+        .map(|p| read_dipole_file(p))
+        .transpose()
+        .map_err(|e| bad_input(e.to_string()))?;
+    let kelvin = quantity(&args.temperature, Dimension::Energy, "--temperature")?
+        / rungs::spectrum::thermal_energy(1.0);
+    let top_lower = highest_bound(&lower, 0)?;
+    let top_upper = highest_bound(upper_setup, 0)?;
+    let range_lower = v_range(&args.v_lower, (0, 1), "--v-lower", top_lower, "lower curve")?;
+    let default_upper = if infrared { (1, 3) } else { (0, 5) };
+    let range_upper = v_range(
+        &args.v_upper,
+        default_upper,
+        "--v-upper",
+        top_upper,
+        "upper curve",
+    )?;
+    let offset = term_offset(args.term_energy.as_deref(), upper_setup, &lower)?;
+    // Band strengths from the J = 0 wavefunctions on one grid.
+    let problems: Vec<(RadialProblem, Option<u32>)> = if infrared {
+        vec![(
+            RadialProblem::new(lower.curve.as_ref(), mu, 0),
+            Some(range_upper.1.max(range_lower.1)),
+        )]
+    } else {
+        vec![
+            (
+                RadialProblem::new(upper_setup.curve.as_ref(), mu, 0),
+                Some(range_upper.1),
+            ),
+            (
+                RadialProblem::new(lower.curve.as_ref(), mu, 0),
+                Some(range_lower.1),
+            ),
+        ]
+    };
+    let mut shared = solve_on_shared_grid(&problems, &SolverSettings::default())
+        .map_err(|e| solver_failure(&lower.source, e))?;
+    let low_shared = shared.pop().expect("one solved");
+    let up_shared = shared.pop().unwrap_or_else(|| low_shared.clone());
+    let band_set = bands(&up_shared, &low_shared, offset, function.as_ref(), infrared);
+    let within = |v: u32, r: (u32, u32)| (r.0..=r.1).contains(&v);
+    let strength = |v_upper: u32, v_lower: u32| {
+        band_set
+            .bands
+            .iter()
+            .find(|b| b.v_upper == v_upper && b.v_lower == v_lower)
+            .filter(|_| within(v_upper, range_upper) && within(v_lower, range_lower))
+            .map(|b| b.moment.map_or(b.franck_condon, |m| m * m))
+    };
+    // Rotational levels, J solved in parallel: the lower vibrational levels with a Boltzmann
+    // factor above 1e-8 (for the populations) and at least the v'' asked for; J up to j_max,
+    // or where (2J + 1) exp(-B J(J+1)/kT) of v'' = 0 falls below 1e-5 of its peak.
+    let kt = rungs::spectrum::thermal_energy(kelvin);
+    let solve_j = |setup: &CurveSetup, j: u32, highest: Option<u32>| {
+        rungs::solver::solve(
+            &RadialProblem::new(setup.curve.as_ref(), mu, j),
+            &SolverSettings::default().with_highest_v(highest),
+        )
+    };
+    let ground = solve_j(&lower, 0, None).map_err(|e| solver_failure(&lower.source, e))?;
+    let populated = ground
+        .levels
+        .iter()
+        .take_while(|l| (-(l.energy - ground.levels[0].energy) / kt).exp() > 1e-8)
+        .last()
+        .map_or(0, |l| l.v)
+        .max(range_lower.1);
+    let j_max = args.j_max.unwrap_or_else(|| {
+        let b = ground.levels[0].rotational_constant;
+        let weight = |j: f64| (2.0 * j + 1.0) * (-b * j * (j + 1.0) / kt).exp();
+        let j_peak = (0.5 * (kt / b).sqrt()).floor();
+        let peak = weight(j_peak);
+        (j_peak as u32..100_000)
+            .find(|&j| weight(f64::from(j)) < 1e-5 * peak)
+            .unwrap_or(100_000)
+    });
+    use rayon::prelude::*;
+    let solve_range = |setup: &CurveSetup, top_j: u32, highest: u32| {
+        let solved: Vec<_> = (0..=top_j)
+            .into_par_iter()
+            .map(|j| solve_j(setup, j, Some(highest)))
+            .collect();
+        let mut sets = Vec::new();
+        for result in solved {
+            match result {
+                Ok(set) => sets.push(set),
+                Err(rungs::solver::SolverError::NothingBound { .. }) => break,
+                Err(e) => return Err(solver_failure(&setup.source, e)),
+            }
+        }
+        Ok(sets)
+    };
+    let lower_sets = solve_range(&lower, j_max, populated)?;
+    let j_top = lower_sets.last().map_or(0, |s| s.j) + 1;
+    let upper_sets = solve_range(upper_setup, j_top, range_upper.1)?;
+    let lines = simulate(
+        &lower_sets,
+        &upper_sets,
+        &strength,
+        offset,
+        kelvin,
+        args.cutoff,
+    )
+    .map_err(|e| bad_input(e.to_string()))?;
+    let mut tables = vec![rungs::report::tables::lines_table(
+        &lines,
+        &format!(
+            "simulated {} spectrum of {} at {kelvin} K",
+            if infrared { "infrared" } else { "electronic" },
+            lower.pair.label()
+        ),
+        units,
+    )];
+    tables[0].notes.push(format!(
+        "lower levels v'' = 0..{populated}, J'' = 0..{} hold the populations (the rest have Boltzmann factors below 1e-8 or 1e-5 of the peak); band strengths |M|^2 {}",
+        j_top - 1,
+        if function.is_some() { "from the moment function" } else { "taken as the Franck-Condon factors (constant electronic moment)" }
+    ));
+    if let Some(path) = &args.profile {
+        let width = |text: &str, option: &str| quantity(text, Dimension::Energy, option);
+        let fwhm = width(&args.fwhm, "--fwhm")?;
+        let profile = match args.shape.as_str() {
+            "lorentzian" => Profile::Lorentzian { fwhm },
+            "voigt" => Profile::Voigt {
+                gaussian_fwhm: fwhm,
+                lorentzian_fwhm: width(
+                    args.lorentzian_fwhm.as_deref().ok_or_else(|| {
+                        bad_input("--shape voigt needs --lorentzian-fwhm, e.g. '0.2 cm-1'")
+                    })?,
+                    "--lorentzian-fwhm",
+                )?,
+            },
+            _ => Profile::Gaussian { fwhm },
+        };
+        let narrowest = match profile {
+            Profile::Voigt {
+                gaussian_fwhm,
+                lorentzian_fwhm,
+            } => gaussian_fwhm.min(lorentzian_fwhm),
+            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
+        };
+        let step = match &args.step {
+            Some(text) => quantity(text, Dimension::Energy, "--step")?,
+            None => narrowest / 10.0,
+        };
+        let (first, last) = (lines[0].position, lines[lines.len() - 1].position);
+        let margin = 10.0 * fwhm;
+        let points = ((last - first + 2.0 * margin) / step).ceil() as usize + 1;
+        if points > 5_000_000 {
+            bail!(bad_input(format!(
+                "the profile would need {points} points; give a coarser --step or fewer bands"
+            )));
+        }
+        let axis: Vec<f64> = (0..points)
+            .map(|i| first - margin + i as f64 * step)
+            .collect();
+        let values = broaden(&lines, profile, &axis).map_err(|e| bad_input(e.to_string()))?;
+        let table = rungs::report::tables::profile_table(&axis, &values, units);
+        std::fs::write(path, table.render(Format::Csv))
+            .map_err(|e| anyhow::anyhow!("cannot write '{}': {e}", path.display()))?;
+    }
+    write_output(
+        &render_all(&tables, args.output.format),
+        args.output.output.as_deref(),
+    )?;
     Ok(ExitCode::SUCCESS)
 }

@@ -4,7 +4,7 @@
 //! potential-energy curves.
 //!
 //! Data flow, one way: [`reader`] (curve files, points, analytic models, units, masses) ->
-//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`bands`], [`compare`], [`dissociation`], [`fit`]) -> [`report`] (tables,
+//! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`bands`], [`compare`], [`dissociation`], [`fit`], [`spectrum`]) -> [`report`] (tables,
 //! CSV, JSON). Each stage knows nothing of the stages after it. Inside the library every number
 //! is in Hartree atomic units (see [`units`]).
 
@@ -18,5 +18,6 @@ pub mod masses;
 pub mod reader;
 pub mod report;
 pub mod solver;
+pub mod spectrum;
 pub mod survey;
 pub mod units;

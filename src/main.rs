@@ -77,6 +77,12 @@ enum Command {
         after_help = "Examples:\n  rungs dipole curves/demo_morse.toml --dipole curves/demo_dipole.toml\n  rungs dipole curves/demo_morse.toml --dipole curves/demo_dipole.toml --v-upper 1-4 --v-lower 0 --format json\n\nDipole file (TOML):\n  [dipole]\n  form = \"polynomial\"        # mu(r) = sum_k c_k (r - r_ref)^k\n  r_ref = \"1.56 angstrom\"\n  unit = \"debye\"\n  length_unit = \"angstrom\"   # c_k in debye / angstrom^k\n  coefficients = [6.3, 2.0, -0.5]\nor form = \"points\" with file = \"points.csv\" (header r_angstrom,dipole_debye)."
     )]
     Dipole(band_commands::DipoleArgs),
+    /// A simulated absorption spectrum (P and R lines with Boltzmann populations) of an
+    /// electronic band system or of infrared bands, with a broadened profile.
+    #[command(
+        after_help = "Examples:\n  rungs spectrum --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --temperature '500 K' --profile profile.csv\n  rungs spectrum --lower curves/demo_morse.toml --dipole curves/demo_dipole.toml --v-upper 1 --v-lower 0 --shape voigt --fwhm '0.3 cm-1' --lorentzian-fwhm '0.1 cm-1' --profile ir.csv --format csv"
+    )]
+    Spectrum(Box<band_commands::SpectrumArgs>),
 }
 
 #[derive(Args)]
@@ -754,6 +760,7 @@ fn main() -> ExitCode {
         Command::Fit(args) => fit(args),
         Command::FranckCondon(args) => band_commands::franck_condon(args),
         Command::Dipole(args) => band_commands::dipole(args),
+        Command::Spectrum(args) => band_commands::spectrum(*args),
     };
     match result {
         Ok(code) => code,

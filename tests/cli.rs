@@ -380,3 +380,51 @@ fn band_refusals() {
         "{stderr}"
     );
 }
+
+#[test]
+fn spectrum_lines_and_profile() {
+    // Every profile shape has unit area (checked in src/spectrum.rs), so the area under the
+    // written profile equals the sum of the line intensities, up to the Gaussian tails beyond
+    // the axis ends (none here: 10 widths of margin).
+    let dir = tempfile::tempdir().unwrap();
+    let profile = dir.path().join("profile.csv");
+    let (code, stdout, stderr) = run(&[
+        "spectrum",
+        "--lower",
+        "curves/demo_morse.toml",
+        "--dipole",
+        "curves/demo_dipole.toml",
+        "--v-upper",
+        "1",
+        "--v-lower",
+        "0",
+        "--temperature",
+        "300 K",
+        "--fwhm",
+        "0.5 cm-1",
+        "--profile",
+        profile.to_str().unwrap(),
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let total: f64 = stdout
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.starts_with("v_upper") && !l.is_empty())
+        .map(|l| l.split(',').nth(7).unwrap().parse::<f64>().unwrap())
+        .sum();
+    let text = std::fs::read_to_string(&profile).unwrap();
+    let points: Vec<(f64, f64)> = text
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let c: Vec<f64> = l.split(',').map(|x| x.parse().unwrap()).collect();
+            (c[0], c[2])
+        })
+        .collect();
+    let step = points[1].0 - points[0].0;
+    let area: f64 = points.iter().map(|p| p.1).sum::<f64>() * step;
+    assert!((area / total - 1.0).abs() < 1e-6, "{area} vs {total}");
+    // Both branches are there, the R branch at higher wavenumber than the P branch.
+    assert!(stdout.contains(",R,") && stdout.contains(",P,"));
+}

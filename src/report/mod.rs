@@ -74,6 +74,9 @@ fn people_cell(cell: &Cell, decimals: usize) -> String {
 
 fn csv_cell(cell: &Cell) -> String {
     match cell {
+        // Shortest text that reads back to the same f64; exponent form for very small and
+        // very large magnitudes, which plain decimals would spell out digit by digit.
+        Cell::Number(x) if *x != 0.0 && (x.abs() < 1e-4 || x.abs() >= 1e15) => format!("{x:e}"),
         Cell::Number(x) => format!("{x}"),
         Cell::Integer(i) => i.to_string(),
         Cell::Text(t) => t.clone(),

@@ -782,3 +782,69 @@ pub fn lifetimes_table(set: &crate::bands::BandSet, lower_range: (u32, u32)) -> 
         )],
     }
 }
+
+/// Vacuum wavelength in nm of a transition energy in hartree.
+fn wavelength_nm(hartree: f64) -> f64 {
+    1e7 / crate::units::to_wavenumber(hartree)
+}
+
+/// Simulated lines.
+pub fn lines_table(lines: &[crate::spectrum::Line], title: &str, units: DisplayUnits) -> Table {
+    let eu = units.energy.name;
+    Table {
+        title: title.to_string(),
+        columns: vec![
+            Column::new("v_upper", 0),
+            Column::new("J_upper", 0),
+            Column::new("v_lower", 0),
+            Column::new("J_lower", 0),
+            Column::new("branch", 0),
+            Column::new(format!("position_{eu}"), 4),
+            Column::new("vacuum_wavelength_nm", 4),
+            Column::new("relative_intensity", 5),
+            Column::new("lower_population", 5),
+        ],
+        rows: lines
+            .iter()
+            .map(|l| {
+                vec![
+                    Cell::Integer(l.v_upper.into()),
+                    Cell::Integer(l.j_upper.into()),
+                    Cell::Integer(l.v_lower.into()),
+                    Cell::Integer(l.j_lower.into()),
+                    Cell::Text(format!("{:?}", l.branch)),
+                    units.e(l.position),
+                    Cell::Number(wavelength_nm(l.position)),
+                    Cell::Number(l.intensity),
+                    Cell::Number(l.lower_population),
+                ]
+            })
+            .collect(),
+        notes: vec!["relative absorption intensities (strongest line 1); see rungs::spectrum for the formula and what it leaves out".into()],
+    }
+}
+
+/// A broadened profile on its axis.
+pub fn profile_table(axis: &[f64], values: &[f64], units: DisplayUnits) -> Table {
+    Table {
+        title: "broadened spectrum".into(),
+        columns: vec![
+            Column::new(format!("position_{}", units.energy.name), 4),
+            Column::new("vacuum_wavelength_nm", 4),
+            Column::new(format!("intensity_per_{}", units.energy.name), 6),
+        ],
+        rows: axis
+            .iter()
+            .zip(values)
+            .map(|(&x, &y)| {
+                vec![
+                    units.e(x),
+                    Cell::Number(wavelength_nm(x)),
+                    // Unit-area profiles: per hartree inside, per display unit outside.
+                    Cell::Number(y * units.energy.in_atomic_units),
+                ]
+            })
+            .collect(),
+        notes: Vec::new(),
+    }
+}
