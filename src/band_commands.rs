@@ -4,7 +4,7 @@
 
 use crate::{
     bad_input, display_units, load_curve, quantity, quantum_range, solver_failure, write_output,
-    CurveArgs, OutputArgs,
+    CurveArgs, FigureArgs, OutputArgs,
 };
 use anyhow::{bail, Result};
 use clap::Args;
@@ -48,6 +48,11 @@ pub struct FranckCondonArgs {
     /// The two atoms, replacing both files'.
     #[arg(long, num_args = 2, value_names = ["FIRST", "SECOND"])]
     atoms: Option<Vec<String>>,
+    /// Write q(v', v'') in the cells of the figure's map.
+    #[arg(long)]
+    figure_values: bool,
+    #[command(flatten)]
+    figure: FigureArgs,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -207,6 +212,11 @@ pub fn franck_condon(args: FranckCondonArgs) -> Result<ExitCode> {
     let lower_levels = restrict(solved.pop().expect("two solved"), range_lower);
     let upper_levels = restrict(solved.pop().expect("two solved"), range_upper);
     let set = bands(&upper_levels, &lower_levels, offset, moment.as_ref(), false);
+    args.figure
+        .save(&rungs::figures::builders::franck_condon_figure(
+            &set,
+            args.figure_values,
+        ))?;
     let title = format!(
         "Franck-Condon factors of {}: {} (J' = {}) <- {} (J'' = {})",
         lower.pair.label(),
@@ -341,6 +351,8 @@ pub struct SpectrumArgs {
     /// Step of the profile's axis (default a tenth of the narrowest width).
     #[arg(long)]
     step: Option<String>,
+    #[command(flatten)]
+    figure: FigureArgs,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -496,7 +508,8 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
         j_top - 1,
         if function.is_some() { "from the moment function" } else { "taken as the Franck-Condon factors (constant electronic moment)" }
     ));
-    if let Some(path) = &args.profile {
+    let mut profile_points = None;
+    if args.profile.is_some() || args.figure.figure.is_some() {
         let width = |text: &str, option: &str| quantity(text, Dimension::Energy, option);
         let fwhm = width(&args.fwhm, "--fwhm")?;
         let profile = match args.shape.as_str() {
@@ -535,10 +548,21 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
             .map(|i| first - margin + i as f64 * step)
             .collect();
         let values = broaden(&lines, profile, &axis).map_err(|e| bad_input(e.to_string()))?;
-        let table = rungs::report::tables::profile_table(&axis, &values, units);
-        std::fs::write(path, table.render(Format::Csv))
-            .map_err(|e| anyhow::anyhow!("cannot write '{}': {e}", path.display()))?;
+        if let Some(path) = &args.profile {
+            let table = rungs::report::tables::profile_table(&axis, &values, units);
+            std::fs::write(path, table.render(Format::Csv))
+                .map_err(|e| anyhow::anyhow!("cannot write '{}': {e}", path.display()))?;
+        }
+        profile_points = Some((axis, values));
     }
+    args.figure
+        .save(&rungs::figures::builders::spectrum_figure(
+            &lines,
+            profile_points
+                .as_ref()
+                .map(|(axis, values)| (axis.as_slice(), values.as_slice())),
+            units,
+        ))?;
     write_output(
         &render_all(&tables, args.output.format),
         args.output.output.as_deref(),

@@ -5,7 +5,7 @@
 //!
 //! Data flow, one way: [`reader`] (curve files, points, analytic models, units, masses) ->
 //! [`solver`] (levels and wavefunctions) -> post-processors ([`survey`], [`constants`], [`bands`], [`compare`], [`dissociation`], [`fit`], [`spectrum`]) -> [`report`] (tables,
-//! CSV, JSON). Each stage knows nothing of the stages after it. Inside the library every number
+//! CSV, JSON) and [`figures`] (SVG, PNG). Each stage knows nothing of the stages after it. Inside the library every number
 //! is in Hartree atomic units (see [`units`]).
 
 pub mod bands;
@@ -13,6 +13,7 @@ pub mod compare;
 pub mod constants;
 pub mod curve;
 pub mod dissociation;
+pub mod figures;
 pub mod fit;
 pub mod masses;
 pub mod reader;

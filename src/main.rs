@@ -39,7 +39,7 @@ enum Command {
     Inspect(InspectArgs),
     /// Every bound vibrational level (any J) with its diagnostics, and wavefunctions on request.
     #[command(
-        after_help = "Examples:\n  rungs levels curves/demo_morse.toml\n  rungs levels curves/h2_born_oppenheimer.toml --j 0-5 --format csv\n  rungs levels curves/demo_morse.toml --all-j --energy-unit eV\n  rungs levels curves/demo_morse.toml --wavefunctions psi.csv --v 0,1,2"
+        after_help = "Examples:\n  rungs levels curves/demo_morse.toml\n  rungs levels curves/h2_born_oppenheimer.toml --j 0-5 --format csv\n  rungs levels curves/demo_morse.toml --all-j --energy-unit eV\n  rungs levels curves/demo_morse.toml --wavefunctions psi.csv --v 0,1,2\n  rungs levels curves/demo_morse.toml --figure levels.png --figure-size slide"
     )]
     Levels(Box<LevelsArgs>),
     /// Spectroscopic constants from the levels: omega_e, omega_e x_e, ..., B_e, alpha_e, ...
@@ -50,25 +50,25 @@ enum Command {
     Constants(ConstantsArgs),
     /// Computed against measured levels: obs - calc for each (v, J), RMS and weighted deviation.
     #[command(
-        after_help = "Examples:\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv --energy-zero lowest --format csv"
+        after_help = "Examples:\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv --energy-zero lowest --format csv\n  rungs compare curves/demo_morse.toml --measured curves/demo_measured_levels.csv --figure residuals.svg"
     )]
     Compare(CompareArgs),
     /// Near dissociation: LeRoy-Bernstein fit of the highest levels (limit, v_D, C_n) and the
     /// levels it predicts, beside the solver's own count.
     #[command(
-        after_help = "Examples:\n  rungs near-limit curves/demo_points.toml\n  rungs near-limit curves/demo_points.toml --power 6 --top 8"
+        after_help = "Examples:\n  rungs near-limit curves/demo_points.toml\n  rungs near-limit curves/demo_points.toml --power 6 --top 8 --figure near_limit.png\n  rungs near-limit --measured curves/demo_near_limit_levels.csv --atoms 39K 133Cs --power 6"
     )]
     NearLimit(NearLimitArgs),
     /// Fit curve parameters to measured levels or transitions (Levenberg-Marquardt with
     /// Hellmann-Feynman derivatives), with standard errors, correlations and residuals.
     #[command(
-        after_help = "Examples:\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width,r_e --write-curve fitted.toml\n  rungs fit curves/demo_morse.toml --measured lines.csv --vary well_depth,width --isotopologue 6LiF=6Li,19F\n\nParameters: morse well_depth, width, r_e; harmonic force_constant, r_e; lennard-jones\nwell_depth, r_e; points depth_scale, r_shift (V = L + s [V_table(r - d) - L])."
+        after_help = "Examples:\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width\n  rungs fit curves/demo_morse.toml --measured curves/demo_measured_levels.csv --vary well_depth,width,r_e --write-curve fitted.toml --figure residuals.png\n  rungs fit curves/demo_morse_guess.toml --measured curves/demo_measured_lines.csv --vary well_depth,width,r_e --isotopologue 6LiF=6Li,19F --isotopologue 7LiF=7Li,19F\n\nParameters: morse well_depth, width, r_e; harmonic force_constant, r_e; lennard-jones\nwell_depth, r_e; points depth_scale, r_shift (V = L + s [V_table(r - d) - L])."
     )]
     Fit(FitArgs),
     /// Franck-Condon factors, overlaps, r-centroids and band origins between two curves, and
     /// with a transition-moment function Einstein A coefficients and lifetimes.
     #[command(
-        after_help = "Examples:\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1'\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --v-upper 0-6 --v-lower 0-2 --moment curves/demo_transition_moment.toml --format csv"
+        after_help = "Examples:\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1'\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --v-upper 0-6 --v-lower 0-2 --moment curves/demo_transition_moment.toml --format csv\n  rungs franck-condon --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --figure fc.png --figure-values"
     )]
     FranckCondon(band_commands::FranckCondonArgs),
     /// Infrared bands within one curve from a dipole-moment function: transition moments,
@@ -80,9 +80,17 @@ enum Command {
     /// A simulated absorption spectrum (P and R lines with Boltzmann populations) of an
     /// electronic band system or of infrared bands, with a broadened profile.
     #[command(
-        after_help = "Examples:\n  rungs spectrum --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --temperature '500 K' --profile profile.csv\n  rungs spectrum --lower curves/demo_morse.toml --dipole curves/demo_dipole.toml --v-upper 1 --v-lower 0 --shape voigt --fwhm '0.3 cm-1' --lorentzian-fwhm '0.1 cm-1' --profile ir.csv --format csv"
+        after_help = "Examples:\n  rungs spectrum --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --temperature '500 K' --profile profile.csv\n  rungs spectrum --lower curves/demo_morse.toml --dipole curves/demo_dipole.toml --v-upper 1 --v-lower 0 --shape voigt --fwhm '0.3 cm-1' --lorentzian-fwhm '0.1 cm-1' --profile ir.csv --format csv\n  rungs spectrum --lower curves/demo_morse.toml --upper curves/demo_upper.toml --term-energy '14000 cm-1' --v-upper 0-2 --v-lower 0 --figure spectrum.svg"
     )]
     Spectrum(Box<band_commands::SpectrumArgs>),
+    /// Print a shell completion script.
+    #[command(
+        after_help = "Examples:\n  rungs completions bash > ~/.local/share/bash-completion/completions/rungs\n  rungs completions zsh > ~/.zfunc/_rungs\n  rungs completions fish > ~/.config/fish/completions/rungs.fish"
+    )]
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
 }
 
 #[derive(Args)]
@@ -100,6 +108,50 @@ struct CurveArgs {
     /// Molecular charge (+1 for a cation); replaces the file's.
     #[arg(long, allow_hyphen_values = true)]
     charge: Option<i32>,
+}
+
+/// Figure options shared by the analysis commands.
+#[derive(Args)]
+struct FigureArgs {
+    /// Write the command's figure to this file (.svg or .png) beside its table.
+    #[arg(long, value_name = "FILE")]
+    figure: Option<PathBuf>,
+    /// Figure size: column (3.4 x 2.6 in at 300 dpi) or slide (10 x 5.6 in at 150 dpi).
+    #[arg(long, default_value = "column", value_parser = ["column", "slide"])]
+    figure_size: String,
+    /// Figure width in inches (replaces the preset's).
+    #[arg(long)]
+    figure_width: Option<f64>,
+    /// Figure height in inches (replaces the preset's).
+    #[arg(long)]
+    figure_height: Option<f64>,
+    /// Dots per inch of a PNG (and the pixel size of an SVG; replaces the preset's).
+    #[arg(long)]
+    dpi: Option<f64>,
+}
+
+impl FigureArgs {
+    fn size(&self) -> rungs::figures::FigureSize {
+        let preset = match self.figure_size.as_str() {
+            "slide" => rungs::figures::FigureSize::SLIDE,
+            _ => rungs::figures::FigureSize::COLUMN,
+        };
+        rungs::figures::FigureSize {
+            width_inches: self.figure_width.unwrap_or(preset.width_inches),
+            height_inches: self.figure_height.unwrap_or(preset.height_inches),
+            dpi: self.dpi.unwrap_or(preset.dpi),
+            font_points: preset.font_points,
+        }
+    }
+
+    /// Draw `figure` into the requested file, if one was requested.
+    fn save(&self, figure: &impl rungs::figures::Figure) -> Result<()> {
+        match &self.figure {
+            Some(path) => rungs::figures::save(figure, path, self.size())
+                .map_err(|e| bad_input(format!("{}: {e}", path.display()))),
+            None => Ok(()),
+        }
+    }
 }
 
 #[derive(Args)]
@@ -169,9 +221,15 @@ struct LevelsArgs {
     /// Write the wavefunctions (CSV: v, r, psi) of the first J to this file.
     #[arg(long)]
     wavefunctions: Option<PathBuf>,
-    /// Which v to write with --wavefunctions, e.g. 0,1,5 (default: all).
+    /// Which v to write with --wavefunctions and to draw with --figure, e.g. 0,1,5 (default:
+    /// all written, about a dozen drawn).
     #[arg(long, value_delimiter = ',')]
     v: Option<Vec<u32>>,
+    /// Draw probability densities instead of wavefunctions in the figure.
+    #[arg(long)]
+    densities: bool,
+    #[command(flatten)]
+    figure: FigureArgs,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -208,6 +266,8 @@ struct CompareArgs {
     #[arg(long, default_value = "lowest", value_parser = ["lowest", "minimum", "limit"])]
     energy_zero: String,
     #[command(flatten)]
+    figure: FigureArgs,
+    #[command(flatten)]
     output: OutputArgs,
 }
 
@@ -242,6 +302,8 @@ struct FitArgs {
     #[arg(long)]
     quiet: bool,
     #[command(flatten)]
+    figure: FigureArgs,
+    #[command(flatten)]
     output: OutputArgs,
 }
 
@@ -260,6 +322,8 @@ struct NearLimitArgs {
     /// beside; without one, give --atoms and --power.
     #[arg(long)]
     measured: Option<PathBuf>,
+    #[command(flatten)]
+    figure: FigureArgs,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -485,6 +549,24 @@ fn levels(args: LevelsArgs) -> Result<ExitCode> {
         let table = wavefunction_table(first, units);
         write_output(&table.render(Format::Csv), Some(path))?;
     }
+    if let Some(first) = sets.first() {
+        if args.figure.figure.is_some() {
+            // The first J again, with its wavefunctions, for the figure.
+            let mut problem = RadialProblem::new(setup.curve.as_ref(), mu, first.j);
+            problem.omega = args.omega;
+            let with_waves = solver::solve(&problem, &settings.clone().with_wavefunctions(true))
+                .map_err(|e| solver_failure(&setup.source, e))?;
+            let figure = rungs::figures::builders::curve_figure(
+                setup.curve.as_ref(),
+                &with_waves,
+                units,
+                args.v.as_deref(),
+                args.densities,
+            )
+            .map_err(|e| bad_input(format!("--figure: {e}")))?;
+            args.figure.save(&figure)?;
+        }
+    }
     print_table(&levels_table(&sets, &setup.pair, units), &args.output)?;
     let unconverged = sets.iter().any(|s| s.unconverged().next().is_some());
     Ok(if unconverged {
@@ -570,6 +652,11 @@ fn compare(args: CompareArgs) -> Result<ExitCode> {
     }
     let comparison = rungs::compare::compare(&measured, &sets, zero)
         .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
+    args.figure
+        .save(&rungs::figures::builders::residual_figure(
+            &comparison,
+            units,
+        ))?;
     print_table(
         &rungs::report::tables::comparison_table(&comparison, &setup.pair, units),
         &args.output,
@@ -633,6 +720,11 @@ fn fit(args: FitArgs) -> Result<ExitCode> {
     let result = rungs::fit::fit(&request, &on_step);
     bar.finish_and_clear();
     let outcome = result.map_err(|e| bad_input(format!("{}: {e}", args.measured.display())))?;
+    args.figure
+        .save(&rungs::figures::builders::residual_figure(
+            &outcome.comparison,
+            units,
+        ))?;
     let mut residuals =
         rungs::report::tables::comparison_table(&outcome.comparison, &setup.pair, units);
     residuals.title = "residuals at the fitted curve".into();
@@ -735,9 +827,18 @@ fn near_limit(args: NearLimitArgs) -> Result<ExitCode> {
         (None, None) => unreachable!("a curve or measured levels were required above"),
     };
     levels.sort_by(|a, b| b.1.total_cmp(&a.1));
+    let all_levels = levels.clone();
     levels.truncate(args.top);
     let fit = rungs::dissociation::leroy_bernstein(&levels, power, mu)
         .map_err(|e| bad_input(format!("{source}: {e}")))?;
+    args.figure
+        .save(&rungs::figures::builders::near_limit_figure(
+            &fit,
+            &levels,
+            &all_levels,
+            mu,
+            units,
+        ))?;
     let table = rungs::report::tables::dissociation_table(
         &fit,
         levels.len(),
@@ -761,6 +862,11 @@ fn main() -> ExitCode {
         Command::FranckCondon(args) => band_commands::franck_condon(args),
         Command::Dipole(args) => band_commands::dipole(args),
         Command::Spectrum(args) => band_commands::spectrum(*args),
+        Command::Completions { shell } => {
+            use clap::CommandFactory;
+            clap_complete::generate(shell, &mut Cli::command(), "rungs", &mut std::io::stdout());
+            Ok(ExitCode::SUCCESS)
+        }
     };
     match result {
         Ok(code) => code,
