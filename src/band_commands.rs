@@ -125,7 +125,7 @@ fn term_offset(term_energy: Option<&str>, upper: &CurveSetup, lower: &CurveSetup
 /// The highest bound v of a curve at J.
 fn highest_bound(setup: &CurveSetup, j: u32) -> Result<u32> {
     let problem = RadialProblem::new(setup.curve.as_ref(), setup.pair.reduced_mass(), j);
-    let set = rungs::solver::solve(&problem, &SolverSettings::default())
+    let set = rungs::solver::solve(&problem, &SolverSettings::default().with_distortion(false))
         .map_err(|e| solver_failure(&setup.source, e))?;
     Ok(set.levels.last().map_or(0, |l| l.v))
 }
@@ -446,7 +446,9 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
     let solve_j = |setup: &CurveSetup, j: u32, highest: Option<u32>| {
         rungs::solver::solve(
             &RadialProblem::new(setup.curve.as_ref(), mu, j),
-            &SolverSettings::default().with_highest_v(highest),
+            &SolverSettings::default()
+                .with_highest_v(highest)
+                .with_distortion(false),
         )
     };
     let ground = solve_j(&lower, 0, None).map_err(|e| solver_failure(&lower.source, e))?;

@@ -180,7 +180,8 @@ impl Setup<'_> {
                     .settings
                     .clone()
                     .with_highest_v(Some(highest_v))
-                    .with_wavefunctions(true);
+                    .with_wavefunctions(true)
+                    .with_distortion(false);
                 solver::solve(&problem, &settings)
             })
             .collect();

@@ -640,7 +640,7 @@ fn compare(args: CompareArgs) -> Result<ExitCode> {
     js.sort_unstable();
     js.dedup();
     let mu = setup.pair.reduced_mass();
-    let settings = SolverSettings::default();
+    let settings = SolverSettings::default().with_distortion(false);
     let mut sets = Vec::new();
     for j in js {
         match solver::solve(&RadialProblem::new(setup.curve.as_ref(), mu, j), &settings) {
@@ -802,7 +802,7 @@ fn near_limit(args: NearLimitArgs) -> Result<ExitCode> {
         .map(|setup| {
             solver::solve(
                 &RadialProblem::new(setup.curve.as_ref(), mu, 0),
-                &SolverSettings::default(),
+                &SolverSettings::default().with_distortion(false),
             )
             .map_err(|e| solver_failure(&setup.source, e))
         })

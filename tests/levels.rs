@@ -297,3 +297,18 @@ fn whole_manifold_of_h2_ends_where_nothing_is_bound() {
         .all(|w| w[1].levels.len() <= w[0].levels.len()));
     assert!(sets.iter().all(|s| s.levels.iter().all(|l| l.converged)));
 }
+
+#[test]
+fn distortion_constants_are_optional_and_change_no_energy() {
+    // Leaving out D_v and H_v (for speed) must not move any level: the energies come from the
+    // same grids either way.
+    let (morse, mu) = common::hcl_morse();
+    let problem = RadialProblem::new(&morse, mu, 0);
+    let full = solve(&problem, &SolverSettings::default()).unwrap();
+    let lean = solve(&problem, &SolverSettings::default().with_distortion(false)).unwrap();
+    assert_eq!(full.levels.len(), lean.levels.len());
+    for (a, b) in full.levels.iter().zip(&lean.levels) {
+        assert_eq!(a.energy, b.energy);
+        assert!(a.centrifugal_distortion.is_finite() && b.centrifugal_distortion.is_nan());
+    }
+}

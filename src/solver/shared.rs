@@ -42,7 +42,8 @@ pub fn solve_on_shared_grid(
             .clone()
             .with_method(Method::Numerov)
             .with_highest_v(*highest_v)
-            .with_wavefunctions(false);
+            .with_wavefunctions(false)
+            .with_distortion(false);
         let set = solve(problem, &own)?;
         let facts = well_facts(problem, &own)?;
         let top = set.levels.last().map_or(facts.top, |l| l.energy);
