@@ -321,6 +321,9 @@ fn well_facts(
 
 /// Points per local wavelength of the coarsest Numerov grid (h, h/2, h/4 follow).
 const NUMEROV_POINTS_PER_WAVELENGTH: f64 = 8.0;
+/// A level stops after two Numerov grids when their Richardson step is below this fraction
+/// of the tolerance.
+const EARLY_EXIT: f64 = 0.1;
 /// Halvings of the coarsest step tried when a level misses the tolerance.
 const MAX_REFINEMENTS: usize = 4;
 
@@ -807,6 +810,7 @@ fn richardson_level(
     let mut distortion = [0.0; 3];
     let mut sextic = [0.0; 3];
     let mut last = None;
+    let mut used = 0;
     let (mut lo, mut hi) = bracket;
     for (k, g) in grids.iter().enumerate() {
         let numerov =
@@ -821,26 +825,42 @@ fn richardson_level(
         energies[k] = level.energy;
         (mean_r[k], mean_inv[k]) = numerov.expectations(&level.phi);
         // D_v is smooth in h too; its two finest values and one Richardson step suffice.
-        if k > 0 && settings.distortion {
+        if settings.distortion {
             (_, distortion[k], sextic[k]) = numerov.rotational_constants(level.energy, &level.phi);
         }
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         (lo, hi) = (level.energy - shift, level.energy + shift);
         last = Some((level, numerov));
+        used = k + 1;
+        // Two grids suffice when their one Richardson step is already far below the
+        // tolerance: the reported value is then that extrapolation (error O(h^6)) and its
+        // estimate the step itself, an upper bound of the same kind as with three grids.
+        if k == 1 && (energies[1] - energies[0]).abs() / 15.0 <= EARLY_EXIT * settings.tolerance {
+            break;
+        }
     }
-    let (energy, error_estimate) = richardson(energies);
-    let (r_avg, _) = richardson(mean_r);
-    let (inv_r2, _) = richardson(mean_inv);
+    let extrapolate = |values: [f64; 3]| -> (f64, f64) {
+        if used == 2 {
+            let step = (values[1] - values[0]) / 15.0;
+            (values[1] + step, step.abs())
+        } else {
+            richardson(values)
+        }
+    };
+    let (energy, error_estimate) = extrapolate(energies);
+    let (r_avg, _) = extrapolate(mean_r);
+    let (inv_r2, _) = extrapolate(mean_inv);
+    let (finest, previous) = (used - 1, used - 2);
     let (centrifugal_distortion, sextic_distortion) = if settings.distortion {
         (
-            distortion[2] + (distortion[2] - distortion[1]) / 15.0,
-            sextic[2] + (sextic[2] - sextic[1]) / 15.0,
+            distortion[finest] + (distortion[finest] - distortion[previous]) / 15.0,
+            sextic[finest] + (sextic[finest] - sextic[previous]) / 15.0,
         )
     } else {
         (f64::NAN, f64::NAN)
     };
-    let (level, finest) = last.expect("three grids solved");
+    let (level, finest) = last.expect("two or three grids solved");
     let absolute = energy + floor;
     let (inner, outer) = turning(
         problem,

@@ -407,9 +407,14 @@ impl NumerovGrid {
             }
             energy += correction;
             if correction.abs() < Self::threshold(tolerance, energy) {
+                // The converged shot is the grid's eigenvector to rounding, and the k-th
+                // eigenvector of a Jacobi (tridiagonal) matrix changes sign exactly k times
+                // (the discrete Sturm oscillation theorem), so its nodes confirm v with no
+                // extra pass over the grid; only a disagreement is checked by Sturm counts.
                 let margin = (1e3 * correction.abs()).max(1e-11 * (1.0 + energy.abs()));
-                let confirmed = self.count_below(energy - margin) == v
-                    && self.count_below(energy + margin) == v + 1;
+                let confirmed = sign_changes(&psi) == v
+                    || (self.count_below(energy - margin) == v
+                        && self.count_below(energy + margin) == v + 1);
                 return confirmed.then(|| GridLevel {
                     energy,
                     phi: self.normalise(psi),
@@ -492,6 +497,19 @@ impl NumerovGrid {
             energy = next;
         }
     }
+}
+
+/// Sign changes along a vector, zeros skipped.
+fn sign_changes(values: &[f64]) -> usize {
+    let mut changes = 0;
+    let mut previous = 0.0f64;
+    for &value in values.iter().filter(|v| **v != 0.0) {
+        if previous != 0.0 && (value < 0.0) != (previous < 0.0) {
+            changes += 1;
+        }
+        previous = value;
+    }
+    changes
 }
 
 impl NumerovGrid {
