@@ -177,7 +177,8 @@ pub fn franck_condon_figure(set: &BandSet, show_values: bool) -> FranckCondonFig
     }
 }
 
-/// obs - calc against v, coloured by J, with the measured uncertainties as error bars.
+/// obs - calc against v (and J), coloured by isotopologue tag, with the measured
+/// uncertainties as error bars.
 pub fn residual_figure(comparison: &Comparison, units: DisplayUnits) -> ResidualFigure {
     let e = |x: f64| units.energy.from_atomic(x);
     ResidualFigure {
@@ -185,13 +186,13 @@ pub fn residual_figure(comparison: &Comparison, units: DisplayUnits) -> Residual
             .residuals
             .iter()
             .map(|r| ResidualPoint {
-                x: f64::from(r.measured.v),
+                v: r.measured.v,
+                j: r.measured.j,
                 residual: e(r.obs_minus_calc),
                 uncertainty: e(r.measured.uncertainty),
-                group: r.measured.j,
+                group: r.measured.tag.clone().unwrap_or_else(|| "measured".into()),
             })
             .collect(),
-        x_label: "v (upper level of a transition)".into(),
         y_label: format!("obs - calc / {}", units.energy.name),
     }
 }

@@ -13,6 +13,18 @@ fn frame<'a, DB: DrawingBackend>(
     y: (f64, f64),
     labels: (&str, &str),
 ) -> Result<ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>, FigureError> {
+    frame_with(area, look, x, y, labels, false)
+}
+
+/// As [`frame`]; with `integer_x` only whole-number x ticks are labelled (quantum numbers).
+fn frame_with<'a, DB: DrawingBackend>(
+    area: &'a DrawingArea<DB, Shift>,
+    look: &Look,
+    x: (f64, f64),
+    y: (f64, f64),
+    labels: (&str, &str),
+    integer_x: bool,
+) -> Result<ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>, FigureError> {
     let points = |p: f64| look.scaled(p).round() as u32;
     let mut chart = ChartBuilder::on(area)
         .margin(points(8.0))
@@ -27,7 +39,13 @@ fn frame<'a, DB: DrawingBackend>(
         .y_desc(labels.1)
         .x_labels(6)
         .y_labels(6)
-        .x_label_formatter(&|v| tick(*v))
+        .x_label_formatter(&|v| {
+            if integer_x && (v - v.round()).abs() > 1e-9 {
+                String::new()
+            } else {
+                tick(*v)
+            }
+        })
         .y_label_formatter(&|v| tick(*v))
         .label_style(look.text(look.tick_px))
         .axis_desc_style(look.text(look.label_px))
@@ -44,10 +62,10 @@ fn tick(value: f64) -> String {
         return "0".into();
     }
     let magnitude = value.abs();
-    if !(1e-3..1e6).contains(&magnitude) {
+    if !(1e-4..1e6).contains(&magnitude) {
         return format!("{value:.2e}");
     }
-    let decimals = (3 - magnitude.log10().floor() as i32).max(0) as usize;
+    let decimals = (2 - magnitude.log10().floor() as i32).max(0) as usize;
     let text = format!("{value:.decimals$}");
     if text.contains('.') {
         text.trim_end_matches('0').trim_end_matches('.').to_string()
@@ -294,30 +312,35 @@ impl Figure for FranckCondonFigure {
     }
 }
 
-/// One residual: position on the x axis, obs - calc, its uncertainty, and its group (J).
+/// One residual: its level (the upper one of a transition), obs - calc, its uncertainty,
+/// and its group (the isotopologue tag).
 #[derive(Debug, Clone, PartialEq)]
 pub struct ResidualPoint {
-    pub x: f64,
+    pub v: u32,
+    pub j: u32,
     pub residual: f64,
     pub uncertainty: f64,
-    pub group: u32,
+    pub group: String,
 }
 
-/// obs - calc with error bars, one colour per group (J), the zero line.
+/// obs - calc with error bars against v and, when several J were measured, against J beside
+/// it; one colour per group, with a key when there are several; the zero line dashed.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ResidualFigure {
     pub points: Vec<ResidualPoint>,
-    pub x_label: String,
     pub y_label: String,
 }
 
-impl Figure for ResidualFigure {
-    fn draw<DB: DrawingBackend>(
+impl ResidualFigure {
+    fn panel<DB: DrawingBackend>(
         &self,
-        root: &DrawingArea<DB, Shift>,
+        area: &DrawingArea<DB, Shift>,
         look: &Look,
+        x_of: &dyn Fn(&ResidualPoint) -> f64,
+        x_label: &str,
+        with_key: bool,
     ) -> Result<(), FigureError> {
-        let x = padded(self.points.iter().map(|p| p.x))
+        let x = padded(self.points.iter().map(x_of))
             .ok_or_else(|| FigureError::Empty("no residuals".into()))?;
         let y = padded(
             self.points
@@ -325,13 +348,13 @@ impl Figure for ResidualFigure {
                 .flat_map(|p| [p.residual - p.uncertainty, p.residual + p.uncertainty, 0.0]),
         )
         .unwrap_or((-1.0, 1.0));
-        let mut chart = frame(root, look, x, y, (&self.x_label, &self.y_label))?;
-        let line = look.line_px;
-        dashed(&mut chart, x, 0.0, INK.mix(0.7).stroke_width(line))?;
-        let mut groups: Vec<u32> = self.points.iter().map(|p| p.group).collect();
+        let mut chart = frame_with(area, look, x, y, (x_label, &self.y_label), true)?;
+        let thin = (look.line_px / 2).max(1);
+        dashed(&mut chart, x, 0.0, INK.mix(0.7).stroke_width(thin))?;
+        let mut groups: Vec<&str> = self.points.iter().map(|p| p.group.as_str()).collect();
         groups.sort_unstable();
         groups.dedup();
-        let radius = look.scaled(2.2).round() as i32;
+        let radius = look.scaled(2.0).round() as i32;
         for (k, group) in groups.iter().enumerate() {
             let colour = PALETTE[k % PALETTE.len()];
             let members: Vec<&ResidualPoint> =
@@ -340,10 +363,10 @@ impl Figure for ResidualFigure {
                 .draw_series(members.iter().map(|p| {
                     PathElement::new(
                         vec![
-                            (p.x, p.residual - p.uncertainty),
-                            (p.x, p.residual + p.uncertainty),
+                            (x_of(p), p.residual - p.uncertainty),
+                            (x_of(p), p.residual + p.uncertainty),
                         ],
-                        colour.stroke_width(line),
+                        colour.mix(0.5).stroke_width(thin),
                     )
                 }))
                 .map_err(drawing)?;
@@ -351,23 +374,42 @@ impl Figure for ResidualFigure {
                 .draw_series(
                     members
                         .iter()
-                        .map(|p| Circle::new((p.x, p.residual), radius, colour.filled())),
+                        .map(|p| Circle::new((x_of(p), p.residual), radius, colour.filled())),
                 )
                 .map_err(drawing)?
-                .label(format!("J = {group}"))
+                .label(group.to_string())
                 .legend(move |(px, py)| Circle::new((px, py), radius, colour.filled()));
         }
-        if groups.len() > 1 {
+        if with_key && groups.len() > 1 {
             chart
                 .configure_series_labels()
                 .label_font(look.text(look.tick_px))
                 .border_style(INK.mix(0.3))
                 .background_style(WHITE.mix(0.9))
-                .position(SeriesLabelPosition::UpperRight)
+                .position(SeriesLabelPosition::LowerRight)
                 .draw()
                 .map_err(drawing)?;
         }
         Ok(())
+    }
+}
+
+impl Figure for ResidualFigure {
+    fn draw<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+        look: &Look,
+    ) -> Result<(), FigureError> {
+        let several_j = self.points.iter().any(|p| p.j != self.points[0].j);
+        let by_v = |p: &ResidualPoint| f64::from(p.v);
+        let by_j = |p: &ResidualPoint| f64::from(p.j);
+        if several_j {
+            let panels = root.split_evenly((1, 2));
+            self.panel(&panels[0], look, &by_v, "v", false)?;
+            self.panel(&panels[1], look, &by_j, "J", true)
+        } else {
+            self.panel(root, look, &by_v, "v", true)
+        }
     }
 }
 
