@@ -71,6 +71,12 @@ pub struct DipoleArgs {
     /// Lower levels v'' (default 0-1).
     #[arg(long)]
     v_lower: Option<String>,
+    /// J of the upper levels (with --j-lower: rovibrational matrix elements <v'J'|mu|v''J''>).
+    #[arg(long, default_value_t = 0)]
+    j_upper: u32,
+    /// J of the lower levels.
+    #[arg(long, default_value_t = 0)]
+    j_lower: u32,
     #[command(flatten)]
     output: OutputArgs,
 }
@@ -270,32 +276,48 @@ pub fn dipole(args: DipoleArgs) -> Result<ExitCode> {
         )));
     }
     let dipole = read_dipole_file(&args.dipole).map_err(|e| bad_input(e.to_string()))?;
-    let top = highest_bound(&setup, 0)?;
+    let top = highest_bound(&setup, args.j_upper.max(args.j_lower))?;
     let range_lower = v_range(&args.v_lower, (0, 1), "--v-lower", top, "curve")?;
     let range_upper = v_range(&args.v_upper, (1, 5), "--v-upper", top, "curve")?;
     let mu = setup.pair.reduced_mass();
     let highest = range_upper.1.max(range_lower.1);
-    let mut solved = solve_on_shared_grid(
-        &[(
-            RadialProblem::new(setup.curve.as_ref(), mu, 0),
-            Some(highest),
-        )],
-        &SolverSettings::default(),
-    )
-    .map_err(|e| solver_failure(&setup.source, e))?;
-    let notes = grid_notes(&solved, &["curve"]);
-    let levels = solved.pop().expect("one solved");
-    let mut set = bands(&levels, &levels, 0.0, Some(&dipole), true);
+    let same_j = args.j_upper == args.j_lower;
+    // One J: one problem, bands v' > v''. Two J: both on one grid, every pair (v' = v'' is
+    // then a pure rotational transition).
+    let problems: Vec<(RadialProblem, Option<u32>)> = [args.j_upper, args.j_lower]
+        .iter()
+        .take(if same_j { 1 } else { 2 })
+        .map(|&j| {
+            (
+                RadialProblem::new(setup.curve.as_ref(), mu, j),
+                Some(highest),
+            )
+        })
+        .collect();
+    let mut solved = solve_on_shared_grid(&problems, &SolverSettings::default())
+        .map_err(|e| solver_failure(&setup.source, e))?;
+    let notes = grid_notes(&solved, &["upper", "lower"]);
+    let lower = solved.pop().expect("one solved");
+    let upper = solved.pop().unwrap_or_else(|| lower.clone());
+    let mut set = bands(&upper, &lower, 0.0, Some(&dipole), same_j);
     let within = |v: u32, r: (u32, u32)| (r.0..=r.1).contains(&v);
     set.bands
         .retain(|b| within(b.v_upper, range_upper) && within(b.v_lower, range_lower));
     set.lifetimes.retain(|(v, _)| within(*v, range_upper));
     let title = format!(
-        "infrared bands of {} from {}",
+        "infrared bands of {} (J' = {}, J'' = {}) from {}",
         setup.pair.label(),
+        args.j_upper,
+        args.j_lower,
         args.dipole.display()
     );
     let mut tables = vec![bands_table(&set, &title, units, false)];
+    if !same_j {
+        tables[0].notes.push(format!(
+            "J' = {} and J'' = {}: the moments are between the two radial functions; the A and f columns use the rotationless formula, and a single line's values take the Hoenl-London factor S/(2J'+1) (see rungs spectrum)",
+            args.j_upper, args.j_lower
+        ));
+    }
     if !set.lifetimes.is_empty() {
         tables.push(lifetimes_table(&set, (0, highest)));
     }

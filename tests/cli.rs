@@ -325,6 +325,58 @@ fn franck_condon_and_dipole_on_the_demo_curves() {
     assert_eq!(code, 0, "{stderr}");
     assert!(stdout.starts_with("# infrared bands"), "{stdout}");
     assert!(!stdout.contains("franck_condon"));
+    // J' = 1 <- J'' = 0 within v = 0: a pure rotational line at E(0, 1) - E(0, 0) (from
+    // `rungs levels`), its moment the v = 0 average of mu(r), near mu(r_e) = 6.3 debye (the demo
+    // dipole function's value at its r_ref).
+    let (code, stdout, stderr) = run(&[
+        "dipole",
+        "curves/demo_morse.toml",
+        "--dipole",
+        "curves/demo_dipole.toml",
+        "--j-upper",
+        "1",
+        "--j-lower",
+        "0",
+        "--v-upper",
+        "0",
+        "--v-lower",
+        "0",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let row: Vec<f64> = stdout
+        .lines()
+        .find(|l| l.starts_with("0,0,"))
+        .unwrap()
+        .split(',')
+        .map(|x| x.parse().unwrap())
+        .collect();
+    let (_, levels, _) = run(&[
+        "levels",
+        "curves/demo_morse.toml",
+        "--j",
+        "0-1",
+        "--format",
+        "csv",
+    ]);
+    let energy = |j: &str| -> f64 {
+        levels
+            .lines()
+            .find(|l| l.starts_with(&format!("0,{j},")))
+            .unwrap()
+            .split(',')
+            .nth(2)
+            .unwrap()
+            .parse()
+            .unwrap()
+    };
+    assert!(
+        (row[2] - (energy("1") - energy("0"))).abs() < 1e-6,
+        "{}",
+        row[2]
+    );
+    assert!((row[3] - 6.3).abs() < 0.1, "{}", row[3]);
 }
 
 #[test]
