@@ -52,6 +52,19 @@ pub enum CompareError {
     NoLowestLevel,
 }
 
+/// Which species each measured line belongs to: the index of the tag in `tags` equal to the
+/// line's tag, or 0 (the curve's own molecule) for untagged lines and tags not listed.
+pub fn species_of(measured: &[MeasuredLevel], tags: &[Option<&str>]) -> Vec<usize> {
+    measured
+        .iter()
+        .map(|m| {
+            tags.iter()
+                .position(|t| t.is_some() && *t == m.tag.as_deref())
+                .unwrap_or(0)
+        })
+        .collect()
+}
+
 /// Compare measured levels (or transitions) with computed level sets (one per J).
 pub fn compare(
     measured: &[MeasuredLevel],

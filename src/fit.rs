@@ -356,17 +356,12 @@ pub fn fit(
         }
         varied.push(index);
     }
-    let species: Vec<usize> = request
-        .measured
+    let tags: Vec<Option<&str>> = request
+        .isotopologues
         .iter()
-        .map(|m| {
-            request
-                .isotopologues
-                .iter()
-                .position(|iso| iso.tag.is_some() && iso.tag == m.tag)
-                .unwrap_or(0)
-        })
+        .map(|iso| iso.tag.as_deref())
         .collect();
+    let species = crate::compare::species_of(request.measured, &tags);
     let mut highest: BTreeMap<(usize, u32), u32> = BTreeMap::new();
     let mut need = |s: usize, v: u32, j: u32| {
         let entry = highest.entry((s, j)).or_insert(v);

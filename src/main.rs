@@ -258,6 +258,10 @@ struct ConstantsArgs {
 struct CompareArgs {
     #[command(flatten)]
     curve: CurveArgs,
+    /// Lines tagged TAG belong to this isotopologue: TAG=FIRST,SECOND (atoms as in --atoms).
+    /// Repeat for several. Untagged lines, and tags not named here, use the curve's molecule.
+    #[arg(long, value_name = "TAG=FIRST,SECOND")]
+    isotopologue: Vec<String>,
     /// Measured levels (CSV: v,J,energy_<unit>,uncertainty_<unit>[,tag]).
     #[arg(long)]
     measured: PathBuf,
@@ -627,54 +631,15 @@ fn energy_zero(name: &str) -> rungs::compare::EnergyZero {
     }
 }
 
-fn compare(args: CompareArgs) -> Result<ExitCode> {
-    let setup = load_curve(&args.curve)?;
-    let units = display_units(&args.output)?;
-    let measured = read_measured(&args.measured)?;
-    let zero = energy_zero(&args.energy_zero);
-    let mut js: Vec<u32> = measured
-        .iter()
-        .flat_map(|m| [m.j].into_iter().chain(m.lower.map(|(_, j)| j)))
-        .chain([0])
-        .collect();
-    js.sort_unstable();
-    js.dedup();
-    let mu = setup.pair.reduced_mass();
-    let settings = SolverSettings::default().with_distortion(false);
-    let mut sets = Vec::new();
-    for j in js {
-        match solver::solve(&RadialProblem::new(setup.curve.as_ref(), mu, j), &settings) {
-            Ok(set) => sets.push(set),
-            // Measured levels at this J will be listed as unassigned.
-            Err(SolverError::NothingBound { .. }) => {}
-            Err(e) => return Err(solver_failure(&setup.source, e)),
-        }
-    }
-    let comparison = rungs::compare::compare(&measured, &sets, zero)
-        .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
-    args.figure
-        .save(&rungs::figures::builders::residual_figure(
-            &comparison,
-            units,
-        ))?;
-    print_table(
-        &rungs::report::tables::comparison_table(&comparison, &setup.pair, units),
-        &args.output,
-    )?;
-    Ok(ExitCode::SUCCESS)
-}
-
-fn fit(args: FitArgs) -> Result<ExitCode> {
-    use rungs::fit::{FitProgress, FitRequest, Isotopologue};
-    let setup = load_curve(&args.curve)?;
-    let units = display_units(&args.output)?;
-    let measured = read_measured(&args.measured)?;
+/// The curve's molecule, then one isotopologue per `TAG=FIRST,SECOND` given.
+fn isotopologues(setup: &CurveSetup, specs: &[String]) -> Result<Vec<rungs::fit::Isotopologue>> {
+    use rungs::fit::Isotopologue;
     let mut isotopologues = vec![Isotopologue {
         tag: None,
         label: setup.pair.label(),
         reduced_mass: setup.pair.reduced_mass(),
     }];
-    for spec in &args.isotopologue {
+    for spec in specs {
         let wrong = || {
             bad_input(format!(
                 "--isotopologue '{spec}': write TAG=FIRST,SECOND, e.g. 6LiF=6Li,19F"
@@ -695,6 +660,94 @@ fn fit(args: FitArgs) -> Result<ExitCode> {
             reduced_mass: pair.reduced_mass(),
         });
     }
+    Ok(isotopologues)
+}
+
+fn compare(args: CompareArgs) -> Result<ExitCode> {
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let measured = read_measured(&args.measured)?;
+    let zero = energy_zero(&args.energy_zero);
+    let species = isotopologues(&setup, &args.isotopologue)?;
+    let tags: Vec<Option<&str>> = species.iter().map(|s| s.tag.as_deref()).collect();
+    let owner = rungs::compare::species_of(&measured, &tags);
+    let settings = SolverSettings::default().with_distortion(false);
+    // Each isotopologue's lines against its own levels; then all lines together.
+    let mut calc: Vec<Option<f64>> = vec![None; measured.len()];
+    let mut computed_not_measured = 0;
+    for (index, isotopologue) in species.iter().enumerate() {
+        let lines: Vec<_> = measured
+            .iter()
+            .zip(&owner)
+            .filter(|(_, o)| **o == index)
+            .map(|(m, _)| m.clone())
+            .collect();
+        if lines.is_empty() {
+            continue;
+        }
+        let mut js: Vec<u32> = lines
+            .iter()
+            .flat_map(|m| [m.j].into_iter().chain(m.lower.map(|(_, j)| j)))
+            .chain([0])
+            .collect();
+        js.sort_unstable();
+        js.dedup();
+        let mut sets = Vec::new();
+        for j in js {
+            let problem = RadialProblem::new(setup.curve.as_ref(), isotopologue.reduced_mass, j);
+            match solver::solve(&problem, &settings) {
+                Ok(set) => sets.push(set),
+                // Measured levels at this J will be listed as unassigned.
+                Err(SolverError::NothingBound { .. }) => {}
+                Err(e) => return Err(solver_failure(&setup.source, e)),
+            }
+        }
+        let part = rungs::compare::compare(&lines, &sets, zero)
+            .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
+        computed_not_measured += part.computed_not_measured;
+        for residual in part.residuals {
+            if let Some(k) = measured
+                .iter()
+                .position(|m| m.line == residual.measured.line)
+            {
+                calc[k] = Some(residual.computed);
+            }
+        }
+    }
+    let mut comparison = rungs::compare::compare_with(&measured, |i, _| calc[i]);
+    comparison.computed_not_measured = computed_not_measured;
+    args.figure
+        .save(&rungs::figures::builders::residual_figure(
+            &comparison,
+            units,
+        ))?;
+    let mut table = rungs::report::tables::comparison_table(&comparison, &setup.pair, units);
+    if species.len() > 1 {
+        table.notes.push(format!(
+            "isotopologues: {}; untagged lines and other tags are {}",
+            species[1..]
+                .iter()
+                .map(|s| format!("'{}' = {}", s.tag.as_deref().unwrap_or(""), s.label))
+                .collect::<Vec<_>>()
+                .join(", "),
+            species[0].label
+        ));
+    } else if measured.iter().any(|m| m.tag.is_some()) {
+        table.notes.push(format!(
+            "every line, tagged or not, is compared as {}; give --isotopologue TAG=FIRST,SECOND for lines of other isotopologues",
+            species[0].label
+        ));
+    }
+    print_table(&table, &args.output)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn fit(args: FitArgs) -> Result<ExitCode> {
+    use rungs::fit::{FitProgress, FitRequest};
+    let setup = load_curve(&args.curve)?;
+    let units = display_units(&args.output)?;
+    let measured = read_measured(&args.measured)?;
+    let isotopologues = isotopologues(&setup, &args.isotopologue)?;
     let request = FitRequest {
         curve: setup.curve.clone(),
         vary: args.vary.iter().map(|v| v.trim().to_string()).collect(),

@@ -224,25 +224,37 @@ fn fit_of_two_isotopologues_from_transitions_and_written_curve() {
             "{name}: {value} +- {error}, truth {truth}"
         );
     }
-    // The written curve reproduces the lines: compare it with them.
-    let (code, stdout, stderr) = run(&[
-        "compare",
-        written_text,
-        "--measured",
-        "curves/demo_measured_lines.csv",
-        "--format",
-        "json",
+    // The written curve reproduces the lines of both isotopologues: compare it with them.
+    let compare = |isotopologues: &[&str]| {
+        let mut args = vec![
+            "compare",
+            written_text,
+            "--measured",
+            "curves/demo_measured_lines.csv",
+            "--format",
+            "json",
+        ];
+        args.extend_from_slice(isotopologues);
+        let (code, stdout, stderr) = run(&args);
+        assert_eq!(code, 0, "{stderr}");
+        let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        json["rows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r["obs_minus_calc_cm-1"].as_f64().unwrap().abs())
+            .fold(0.0, f64::max)
+    };
+    let worst = compare(&[
+        "--isotopologue",
+        "6LiF=6Li,19F",
+        "--isotopologue",
+        "7LiF=7Li,19F",
     ]);
-    assert_eq!(code, 0, "{stderr}");
-    let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-    let worst = json["rows"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .filter(|r| r["tag"] == "7LiF")
-        .map(|r| r["obs_minus_calc_cm-1"].as_f64().unwrap().abs())
-        .fold(0.0, f64::max);
     assert!(worst < 1e-3, "{worst}");
+    // Without the mapping every line is taken as 7LiF (and said so): the 6LiF lines miss by
+    // tens of cm-1 (the isotope shift of the 1-0 band, about 54 cm-1 here).
+    assert!(compare(&[]) > 10.0);
 }
 
 #[test]
