@@ -58,8 +58,13 @@ pub enum Format {
 fn people_cell(cell: &Cell, decimals: usize) -> String {
     match cell {
         Cell::Number(x) if x.is_finite() => {
-            if x.abs() >= 1e-3 || *x == 0.0 || decimals == 0 {
-                format!("{x:.decimals$}")
+            if x.abs() >= 1e9 {
+                format!("{x:.6e}")
+            } else if x.abs() >= 1e-3 || *x == 0.0 || decimals == 0 {
+                // At most 10 significant figures for people (CSV and JSON keep them all).
+                let integer_digits = x.abs().log10().floor().max(0.0) as usize + 1;
+                let shown = decimals.min(10usize.saturating_sub(integer_digits));
+                format!("{x:.shown$}")
             } else {
                 format!("{x:.3e}")
             }
@@ -232,5 +237,15 @@ mod tests {
             Some(2170.272500000123)
         );
         assert!(table.render(Format::Table).contains("2170.2725"));
+    }
+
+    #[test]
+    fn people_see_at_most_ten_significant_figures() {
+        assert_eq!(
+            people_cell(&Cell::Number(254796.74771234), 8),
+            "254796.7477"
+        );
+        assert_eq!(people_cell(&Cell::Number(1.5e12), 2), "1.500000e12");
+        assert_eq!(people_cell(&Cell::Number(0.5), 4), "0.5000");
     }
 }
