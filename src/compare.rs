@@ -3,8 +3,20 @@
 //! practice in spectroscopic fitting). Measured levels with no computed counterpart are
 //! returned as unassigned, never dropped. Knows nothing of files or reports; hartree inside.
 
+use crate::curve::PotentialCurve;
 use crate::reader::MeasuredLevel;
-use crate::solver::LevelSet;
+use crate::solver::{self, LevelSet, RadialProblem, SolverError, SolverSettings};
+
+/// A species sharing the curve: the tag its measured lines carry, and its reduced mass.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Isotopologue {
+    /// The measured-file tag that selects it; None for lines without a (known) tag.
+    pub tag: Option<String>,
+    /// A label for reports ("7Li-19F").
+    pub label: String,
+    /// Reduced mass, m_e.
+    pub reduced_mass: f64,
+}
 
 /// The energy zero of the measured values.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -46,10 +58,63 @@ pub struct Comparison {
 /// Problems comparing.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum CompareError {
+    #[error(transparent)]
+    Solver(#[from] SolverError),
     #[error("the energy zero 'limit' needs a curve with a dissociation limit")]
     NoLimit,
     #[error("the energy zero 'lowest' needs the lowest level (v = 0) of the lowest J, which was not computed")]
     NoLowestLevel,
+}
+
+/// Compare lines of several isotopologues of one curve: each line (see [`species_of`]) against
+/// the levels solved with its own reduced mass, each on its own energy zero. The first
+/// isotopologue takes the untagged lines. A J with no bound level leaves its lines unassigned.
+pub fn compare_isotopologues(
+    curve: &dyn PotentialCurve,
+    measured: &[MeasuredLevel],
+    isotopologues: &[Isotopologue],
+    zero: EnergyZero,
+    settings: &SolverSettings,
+) -> Result<Comparison, CompareError> {
+    let tags: Vec<Option<&str>> = isotopologues.iter().map(|s| s.tag.as_deref()).collect();
+    let owner = species_of(measured, &tags);
+    let mut calc: Vec<Option<f64>> = vec![None; measured.len()];
+    let mut computed_not_measured = 0;
+    for (index, isotopologue) in isotopologues.iter().enumerate() {
+        let members: Vec<usize> = (0..measured.len()).filter(|&i| owner[i] == index).collect();
+        if members.is_empty() {
+            continue;
+        }
+        let lines: Vec<MeasuredLevel> = members.iter().map(|&i| measured[i].clone()).collect();
+        let mut js: Vec<u32> = lines
+            .iter()
+            .flat_map(|m| [m.j].into_iter().chain(m.lower.map(|(_, j)| j)))
+            .chain([0])
+            .collect();
+        js.sort_unstable();
+        js.dedup();
+        let mut sets = Vec::new();
+        for j in js {
+            let problem = RadialProblem::new(curve, isotopologue.reduced_mass, j);
+            match solver::solve(&problem, settings) {
+                Ok(set) => sets.push(set),
+                Err(SolverError::NothingBound { .. }) => {}
+                Err(e) => return Err(e.into()),
+            }
+        }
+        let part = compare(&lines, &sets, zero)?;
+        computed_not_measured += part.computed_not_measured;
+        // compare keeps the order of its lines, unassigned ones left out.
+        let mut residuals = part.residuals.iter().peekable();
+        for (&i, line) in members.iter().zip(&lines) {
+            if residuals.peek().is_some_and(|r| r.measured == *line) {
+                calc[i] = residuals.next().map(|r| r.computed);
+            }
+        }
+    }
+    let mut comparison = compare_with(measured, |i, _| calc[i]);
+    comparison.computed_not_measured = computed_not_measured;
+    Ok(comparison)
 }
 
 /// Which species each measured line belongs to: the index of the tag in `tags` equal to the

@@ -31,16 +31,7 @@ use rayon::prelude::*;
 use std::collections::BTreeMap;
 use std::sync::Arc;
 
-/// A species sharing the curve: the tag its measured lines carry, and its reduced mass.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Isotopologue {
-    /// The measured-file tag that selects it; None for lines without a (known) tag.
-    pub tag: Option<String>,
-    /// A label for reports ("7Li-19F").
-    pub label: String,
-    /// Reduced mass, m_e.
-    pub reduced_mass: f64,
-}
+pub use crate::compare::Isotopologue;
 
 /// What to fit.
 #[derive(Debug, Clone)]

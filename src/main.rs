@@ -632,8 +632,11 @@ fn energy_zero(name: &str) -> rungs::compare::EnergyZero {
 }
 
 /// The curve's molecule, then one isotopologue per `TAG=FIRST,SECOND` given.
-fn isotopologues(setup: &CurveSetup, specs: &[String]) -> Result<Vec<rungs::fit::Isotopologue>> {
-    use rungs::fit::Isotopologue;
+fn isotopologues(
+    setup: &CurveSetup,
+    specs: &[String],
+) -> Result<Vec<rungs::compare::Isotopologue>> {
+    use rungs::compare::Isotopologue;
     let mut isotopologues = vec![Isotopologue {
         tag: None,
         label: setup.pair.label(),
@@ -669,53 +672,17 @@ fn compare(args: CompareArgs) -> Result<ExitCode> {
     let measured = read_measured(&args.measured)?;
     let zero = energy_zero(&args.energy_zero);
     let species = isotopologues(&setup, &args.isotopologue)?;
-    let tags: Vec<Option<&str>> = species.iter().map(|s| s.tag.as_deref()).collect();
-    let owner = rungs::compare::species_of(&measured, &tags);
-    let settings = SolverSettings::default().with_distortion(false);
-    // Each isotopologue's lines against its own levels; then all lines together.
-    let mut calc: Vec<Option<f64>> = vec![None; measured.len()];
-    let mut computed_not_measured = 0;
-    for (index, isotopologue) in species.iter().enumerate() {
-        let lines: Vec<_> = measured
-            .iter()
-            .zip(&owner)
-            .filter(|(_, o)| **o == index)
-            .map(|(m, _)| m.clone())
-            .collect();
-        if lines.is_empty() {
-            continue;
-        }
-        let mut js: Vec<u32> = lines
-            .iter()
-            .flat_map(|m| [m.j].into_iter().chain(m.lower.map(|(_, j)| j)))
-            .chain([0])
-            .collect();
-        js.sort_unstable();
-        js.dedup();
-        let mut sets = Vec::new();
-        for j in js {
-            let problem = RadialProblem::new(setup.curve.as_ref(), isotopologue.reduced_mass, j);
-            match solver::solve(&problem, &settings) {
-                Ok(set) => sets.push(set),
-                // Measured levels at this J will be listed as unassigned.
-                Err(SolverError::NothingBound { .. }) => {}
-                Err(e) => return Err(solver_failure(&setup.source, e)),
-            }
-        }
-        let part = rungs::compare::compare(&lines, &sets, zero)
-            .map_err(|e| bad_input(format!("{}: {e}", setup.source)))?;
-        computed_not_measured += part.computed_not_measured;
-        for residual in part.residuals {
-            if let Some(k) = measured
-                .iter()
-                .position(|m| m.line == residual.measured.line)
-            {
-                calc[k] = Some(residual.computed);
-            }
-        }
-    }
-    let mut comparison = rungs::compare::compare_with(&measured, |i, _| calc[i]);
-    comparison.computed_not_measured = computed_not_measured;
+    let comparison = rungs::compare::compare_isotopologues(
+        setup.curve.as_ref(),
+        &measured,
+        &species,
+        zero,
+        &SolverSettings::default().with_distortion(false),
+    )
+    .map_err(|e| match e {
+        rungs::compare::CompareError::Solver(e) => solver_failure(&setup.source, e),
+        other => bad_input(format!("{}: {other}", setup.source)),
+    })?;
     args.figure
         .save(&rungs::figures::builders::residual_figure(
             &comparison,

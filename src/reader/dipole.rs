@@ -13,7 +13,7 @@
 //! itself: a header `r_<length unit>,dipole_<dipole unit>` and rows of numbers.
 
 use super::points::parse_function_points;
-use super::InputError;
+use super::{choice, line_of_toml_error, InputError, Origin};
 use crate::curve::DipoleFunction;
 use crate::units::{self, Dimension};
 use std::path::Path;
@@ -44,17 +44,16 @@ pub fn parse_dipole_toml(
     name: &str,
     base_dir: &Path,
 ) -> Result<DipoleFunction, InputError> {
-    let document: toml::Table = toml::from_str(text)
-        .map_err(|e| InputError::in_file(name, format!("not valid TOML: {}", e.message())))?;
-    let line_of = |key: &str| {
-        text.lines()
-            .position(|l| l.trim_start().starts_with(key))
-            .map(|i| i + 1)
-    };
-    let error = |key: &str, message: String| InputError {
+    let document: toml::Table = toml::from_str(text).map_err(|e| InputError {
         source_name: name.to_string(),
-        line: line_of(key),
-        message,
+        line: line_of_toml_error(text, &e),
+        message: format!("not valid TOML: {}", e.message()),
+    })?;
+    let origin = Origin {
+        name: name.to_string(),
+        text: Some(text),
+        section: "dipole",
+        base_dir: base_dir.to_path_buf(),
     };
     let Some(toml::Value::Table(dipole)) = document.get("dipole") else {
         return Err(InputError::in_file(
@@ -62,99 +61,59 @@ pub fn parse_dipole_toml(
             "no [dipole] section; see `rungs dipole --help` for the format",
         ));
     };
-    let text_of = |key: &str| -> Result<Option<&str>, InputError> {
-        match dipole.get(key) {
-            None => Ok(None),
-            Some(toml::Value::String(s)) => Ok(Some(s.as_str())),
-            Some(other) => Err(error(key, format!("'{key}' must be text, found {other}"))),
-        }
+    origin.check_keys(
+        dipole,
+        &["form", "r_ref", "unit", "length_unit", "coefficients", "file"],
+        "[dipole]",
+    )?;
+    let polynomial = choice(
+        &origin,
+        dipole,
+        "form",
+        &[("polynomial", true), ("points", false)],
+    )?
+    .unwrap_or(true);
+    if !polynomial {
+        let file = origin
+            .string(dipole, "file")?
+            .ok_or_else(|| origin.error(Some("form"), "form = \"points\" needs file = \"...csv\""))?;
+        let path = base_dir.join(file);
+        let data = std::fs::read_to_string(&path).map_err(|e| {
+            origin.error(
+                Some("file"),
+                format!("cannot read points file '{}': {e}", path.display()),
+            )
+        })?;
+        return points(&data, &path.display().to_string());
+    }
+    let unit_of = |key: &str, default: &str, dimension: Dimension| {
+        units::parse_unit(origin.string(dipole, key)?.unwrap_or(default), dimension)
+            .map_err(|e| origin.error(Some(key), format!("'{key}': {e}")))
     };
-    for key in dipole.keys() {
-        if ![
-            "form",
-            "r_ref",
-            "unit",
-            "length_unit",
-            "coefficients",
-            "file",
-        ]
-        .contains(&key.as_str())
-        {
-            return Err(error(
-                key,
-                format!("unknown key '{key}' in [dipole]; known: form, r_ref, unit, length_unit, coefficients, file"),
-            ));
-        }
-    }
-    match text_of("form")?.unwrap_or("polynomial") {
-        "points" => {
-            let file = text_of("file")?
-                .ok_or_else(|| error("form", "form = \"points\" needs file = \"...csv\"".into()))?;
-            let path = base_dir.join(file);
-            let data = std::fs::read_to_string(&path).map_err(|e| {
-                error(
-                    "file",
-                    format!("cannot read points file '{}': {e}", path.display()),
-                )
-            })?;
-            points(&data, &path.display().to_string())
-        }
-        "polynomial" => {
-            let dipole_unit =
-                units::parse_unit(text_of("unit")?.unwrap_or("debye"), Dimension::DipoleMoment)
-                    .map_err(|e| error("unit", format!("'unit': {e}")))?;
-            let length_unit = units::parse_unit(
-                text_of("length_unit")?.unwrap_or("angstrom"),
-                Dimension::Length,
+    let dipole_unit = unit_of("unit", "debye", Dimension::DipoleMoment)?;
+    let length_unit = unit_of("length_unit", "angstrom", Dimension::Length)?;
+    let r_ref = origin
+        .quantity(dipole, "r_ref", Dimension::Length)?
+        .ok_or_else(|| origin.error(None, "a polynomial needs r_ref = \"1.5 angstrom\""))?;
+    let coefficients = origin
+        .numbers(dipole, "coefficients")?
+        .filter(|c| !c.is_empty())
+        .ok_or_else(|| {
+            origin.error(
+                Some("coefficients"),
+                "a polynomial needs coefficients = [c0, c1, ...]",
             )
-            .map_err(|e| error("length_unit", format!("'length_unit': {e}")))?;
-            let r_ref = units::parse_quantity(
-                text_of("r_ref")?.ok_or_else(|| {
-                    error("form", "a polynomial needs r_ref = \"1.5 angstrom\"".into())
-                })?,
-                Dimension::Length,
-            )
-            .map_err(|e| error("r_ref", format!("'r_ref': {e}")))?;
-            let coefficients =
-                match dipole.get("coefficients") {
-                    Some(toml::Value::Array(items)) if !items.is_empty() => items
-                        .iter()
-                        .enumerate()
-                        .map(|(k, item)| {
-                            let value = match item {
-                                toml::Value::Integer(i) => *i as f64,
-                                toml::Value::Float(x) if x.is_finite() => *x,
-                                other => {
-                                    return Err(error(
-                                        "coefficients",
-                                        format!(
-                                            "coefficient {k} must be a plain number, found {other}"
-                                        ),
-                                    ))
-                                }
-                            };
-                            // c_k in unit / length_unit^k -> e a_0 / bohr^k.
-                            Ok(dipole_unit.to_atomic(value)
-                                / length_unit.to_atomic(1.0).powi(k as i32))
-                        })
-                        .collect::<Result<Vec<_>, _>>()?,
-                    _ => {
-                        return Err(error(
-                            "coefficients",
-                            "a polynomial needs coefficients = [c0, c1, ...]".into(),
-                        ))
-                    }
-                };
-            Ok(DipoleFunction::Polynomial {
-                r_ref,
-                coefficients,
-            })
-        }
-        other => Err(error(
-            "form",
-            format!("form = '{other}' is not one of: polynomial, points"),
-        )),
-    }
+        })?;
+    // c_k in unit / length_unit^k -> e a_0 / bohr^k.
+    let coefficients = coefficients
+        .iter()
+        .enumerate()
+        .map(|(k, c)| dipole_unit.to_atomic(*c) / length_unit.to_atomic(1.0).powi(k as i32))
+        .collect();
+    Ok(DipoleFunction::Polynomial {
+        r_ref,
+        coefficients,
+    })
 }
 
 #[cfg(test)]

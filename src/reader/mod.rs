@@ -238,6 +238,29 @@ impl Origin<'_> {
         Ok(value)
     }
 
+    /// A list of plain numbers, such as `powers = [6, 8]`.
+    fn numbers(&self, table: &toml::Table, key: &str) -> Result<Option<Vec<f64>>, InputError> {
+        match table.get(key) {
+            None => Ok(None),
+            Some(toml::Value::Array(items)) => items
+                .iter()
+                .map(|v| match v {
+                    toml::Value::Integer(i) => Ok(*i as f64),
+                    toml::Value::Float(x) if x.is_finite() => Ok(*x),
+                    other => Err(self.error(
+                        Some(key),
+                        format!("'{key}' must hold plain numbers, found {other}"),
+                    )),
+                })
+                .collect::<Result<Vec<_>, _>>()
+                .map(Some),
+            Some(other) => Err(self.error(
+                Some(key),
+                format!("'{key}' must be a list such as [6, 8], found {other}"),
+            )),
+        }
+    }
+
     fn number(&self, table: &toml::Table, key: &str, default: f64) -> Result<f64, InputError> {
         match table.get(key) {
             None => Ok(default),
@@ -521,27 +544,6 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
                 &["form", "powers", "coefficients_au"],
                 "[curve.outer_tail]",
             )?;
-            let numbers = |key: &str| -> Result<Option<Vec<f64>>, InputError> {
-                match tail.get(key) {
-                    None => Ok(None),
-                    Some(toml::Value::Array(items)) => items
-                        .iter()
-                        .map(|v| match v {
-                            toml::Value::Integer(i) => Ok(*i as f64),
-                            toml::Value::Float(x) if x.is_finite() => Ok(*x),
-                            other => Err(tail_origin.error(
-                                Some(key),
-                                format!("'{key}' must hold plain numbers, found {other}"),
-                            )),
-                        })
-                        .collect::<Result<Vec<_>, _>>()
-                        .map(Some),
-                    Some(other) => Err(tail_origin.error(
-                        Some(key),
-                        format!("'{key}' must be a list such as [6, 8], found {other}"),
-                    )),
-                }
-            };
             match choice(
                 &tail_origin,
                 tail,
@@ -551,7 +553,7 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
             .unwrap_or(true)
             {
                 true => {
-                    let powers = numbers("powers")?.unwrap_or_else(|| vec![6.0]);
+                    let powers = tail_origin.numbers(tail, "powers")?.unwrap_or_else(|| vec![6.0]);
                     if powers.is_empty() || powers.iter().any(|&p| p <= 0.0) {
                         return Err(tail_origin.error(
                             Some("powers"),
@@ -560,7 +562,7 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
                     }
                     OuterTail::InversePower {
                         powers,
-                        coefficients: numbers("coefficients_au")?,
+                        coefficients: tail_origin.numbers(tail, "coefficients_au")?,
                     }
                 }
                 false => OuterTail::Exponential,
