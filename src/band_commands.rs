@@ -417,7 +417,18 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
         .map_err(|e| bad_input(e.to_string()))?;
     let kelvin = quantity(&args.temperature, Dimension::Energy, "--temperature")?
         / rungs::spectrum::thermal_energy(1.0);
-    let top_lower = highest_bound(&lower, 0)?;
+    let solve_j = |setup: &CurveSetup, j: u32, highest: Option<u32>| {
+        rungs::solver::solve(
+            &RadialProblem::new(setup.curve.as_ref(), mu, j),
+            &SolverSettings::default()
+                .with_highest_v(highest)
+                .with_distortion(false),
+        )
+    };
+    // Every bound J = 0 level of the lower curve: its highest v bounds --v-lower, and its
+    // levels set the populations below.
+    let ground = solve_j(&lower, 0, None).map_err(|e| solver_failure(&lower.source, e))?;
+    let top_lower = ground.levels.last().map_or(0, |l| l.v);
     let top_upper = highest_bound(upper_setup, 0)?;
     let range_lower = v_range(&args.v_lower, (0, 1), "--v-lower", top_lower, "lower curve")?;
     let default_upper = if infrared { (1, 3) } else { (0, 5) };
@@ -465,15 +476,6 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
     // factor above 1e-8 (for the populations) and at least the v'' asked for; J up to j_max,
     // or where (2J + 1) exp(-B J(J+1)/kT) of v'' = 0 falls below 1e-5 of its peak.
     let kt = rungs::spectrum::thermal_energy(kelvin);
-    let solve_j = |setup: &CurveSetup, j: u32, highest: Option<u32>| {
-        rungs::solver::solve(
-            &RadialProblem::new(setup.curve.as_ref(), mu, j),
-            &SolverSettings::default()
-                .with_highest_v(highest)
-                .with_distortion(false),
-        )
-    };
-    let ground = solve_j(&lower, 0, None).map_err(|e| solver_failure(&lower.source, e))?;
     let populated = ground
         .levels
         .iter()
@@ -549,16 +551,9 @@ pub fn spectrum(args: SpectrumArgs) -> Result<ExitCode> {
             },
             _ => Profile::Gaussian { fwhm },
         };
-        let narrowest = match profile {
-            Profile::Voigt {
-                gaussian_fwhm,
-                lorentzian_fwhm,
-            } => gaussian_fwhm.min(lorentzian_fwhm),
-            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
-        };
         let step = match &args.step {
             Some(text) => quantity(text, Dimension::Energy, "--step")?,
-            None => narrowest / 10.0,
+            None => profile.narrowest() / 10.0,
         };
         let (first, last) = (lines[0].position, lines[lines.len() - 1].position);
         let margin = 10.0 * fwhm;

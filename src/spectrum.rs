@@ -59,6 +59,30 @@ pub enum Profile {
     },
 }
 
+impl Profile {
+    /// The smallest full width of the shape, hartree.
+    pub fn narrowest(&self) -> f64 {
+        match *self {
+            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
+            Profile::Voigt {
+                gaussian_fwhm,
+                lorentzian_fwhm,
+            } => gaussian_fwhm.min(lorentzian_fwhm),
+        }
+    }
+
+    /// An upper bound of the full width of the shape, hartree.
+    pub fn widest(&self) -> f64 {
+        match *self {
+            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
+            Profile::Voigt {
+                gaussian_fwhm,
+                lorentzian_fwhm,
+            } => gaussian_fwhm + lorentzian_fwhm,
+        }
+    }
+}
+
 /// Problems simulating.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum SpectrumError {
@@ -249,26 +273,6 @@ impl Shape {
             }
         }
     }
-
-    fn narrowest(&self) -> f64 {
-        match self.profile {
-            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
-            Profile::Voigt {
-                gaussian_fwhm,
-                lorentzian_fwhm,
-            } => gaussian_fwhm.min(lorentzian_fwhm),
-        }
-    }
-
-    fn widest(&self) -> f64 {
-        match self.profile {
-            Profile::Gaussian { fwhm } | Profile::Lorentzian { fwhm } => fwhm,
-            Profile::Voigt {
-                gaussian_fwhm,
-                lorentzian_fwhm,
-            } => gaussian_fwhm + lorentzian_fwhm,
-        }
-    }
 }
 
 /// The broadened spectrum sum_lines I * shape(x - position) on the points `axis` (hartree),
@@ -281,17 +285,17 @@ pub fn broaden(lines: &[Line], profile: Profile, axis: &[f64]) -> Result<Vec<f64
         0.0
     };
     let reach_widths = 50.0;
-    let probe = Shape::new(profile, 0.0);
-    if probe.narrowest().is_nan() || probe.narrowest() <= 0.0 {
+    let narrowest = profile.narrowest();
+    if narrowest.is_nan() || narrowest <= 0.0 {
         return Err(SpectrumError::Width);
     }
-    if step > probe.narrowest() / 5.0 {
+    if step > narrowest / 5.0 {
         return Err(SpectrumError::StepTooCoarse {
             step,
-            width: probe.narrowest(),
+            width: narrowest,
         });
     }
-    let reach = reach_widths * probe.widest();
+    let reach = reach_widths * profile.widest();
     let shape = Shape::new(profile, reach);
     let mut values = vec![0.0; axis.len()];
     let Some(&start) = axis.first() else {

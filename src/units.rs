@@ -148,6 +148,20 @@ const fn unit(
     }
 }
 
+/// The unit a quantity of each dimension is written in when the user chose none: cm-1,
+/// angstrom, 1/angstrom, u, N/m, debye (the customary units of the trade).
+pub fn customary_unit(dimension: Dimension) -> &'static Unit {
+    let name = match dimension {
+        Dimension::Energy => "cm-1",
+        Dimension::Length => "angstrom",
+        Dimension::InverseLength => "1/angstrom",
+        Dimension::Mass => "u",
+        Dimension::ForceConstant => "N/m",
+        Dimension::DipoleMoment => "debye",
+    };
+    parse_unit(name, dimension).expect("the customary units are in the unit table")
+}
+
 /// Every unit the program reads or writes.
 ///
 /// Energies: k_B T for `K`, h nu for `MHz`/`GHz`; molar energies per mole of molecules.
@@ -384,6 +398,20 @@ pub fn parse_quantity(text: &str, dimension: Dimension) -> Result<f64, UnitError
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn every_dimension_has_a_customary_unit() {
+        for dimension in [
+            Dimension::Energy,
+            Dimension::Length,
+            Dimension::InverseLength,
+            Dimension::Mass,
+            Dimension::ForceConstant,
+            Dimension::DipoleMoment,
+        ] {
+            assert_eq!(customary_unit(dimension).dimension, dimension);
+        }
+    }
 
     #[test]
     fn every_unit_is_found_by_its_name_and_aliases() {

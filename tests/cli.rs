@@ -15,6 +15,17 @@ fn run(args: &[&str]) -> (i32, String, String) {
     )
 }
 
+/// Run a command that must be refused as bad input (exit 2, no panic) with every one of
+/// `expected` in its message.
+fn refused(args: &[&str], expected: &[&str]) {
+    let (code, _, stderr) = run(args);
+    assert_eq!(code, 2, "{args:?}: {stderr}");
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    for text in expected {
+        assert!(stderr.contains(text), "{args:?}: no '{text}' in {stderr}");
+    }
+}
+
 /// The value column of the row named `name` in a quantity,value,... CSV.
 fn csv_value(csv: &str, name: &str) -> f64 {
     let line = csv
@@ -125,10 +136,10 @@ fn bad_measured_files_are_refused_with_their_line() {
         (&no_unit, "line 1"),
         (&zero_uncertainty, "must be positive"),
     ] {
-        let (code, _, stderr) = run(&["compare", "curves/demo_morse.toml", "--measured", file]);
-        assert_eq!(code, 2, "{stderr}");
-        assert!(stderr.contains(expected), "{stderr}");
-        assert!(!stderr.contains("panicked"));
+        refused(
+            &["compare", "curves/demo_morse.toml", "--measured", file],
+            &[expected],
+        );
     }
 }
 
@@ -270,15 +281,19 @@ fn fit_refusals() {
         args.extend_from_slice(extra);
         run(&args)
     };
-    let (code, _, stderr) = with(&["--vary", "depth"]);
-    assert_eq!(code, 2);
-    assert!(
-        stderr.contains("no parameter 'depth'") && stderr.contains("well_depth, width, r_e"),
-        "{stderr}"
+    let refused_fit = |extra: &[&str], expected: &[&str]| {
+        let mut args = base.to_vec();
+        args.extend_from_slice(extra);
+        refused(&args, expected);
+    };
+    refused_fit(
+        &["--vary", "depth"],
+        &["no parameter 'depth'", "well_depth, width, r_e"],
     );
-    let (code, _, stderr) = with(&["--vary", "width", "--isotopologue", "6LiF"]);
-    assert_eq!(code, 2);
-    assert!(stderr.contains("TAG=FIRST,SECOND"), "{stderr}");
+    refused_fit(
+        &["--vary", "width", "--isotopologue", "6LiF"],
+        &["TAG=FIRST,SECOND"],
+    );
     // Stopped early: the table is printed as not converged, and the exit code says so.
     let (code, stdout, stderr) = with(&["--vary", "well_depth,width", "--max-evaluations", "2"]);
     assert_eq!(code, 3, "{stderr}");
@@ -393,37 +408,40 @@ fn franck_condon_and_dipole_on_the_demo_curves() {
 
 #[test]
 fn band_refusals() {
-    // Different nuclei.
-    let (code, _, stderr) = run(&[
-        "franck-condon",
-        "--lower",
-        "curves/demo_morse.toml",
-        "--upper",
-        "curves/h2_born_oppenheimer.toml",
-    ]);
-    assert_eq!(code, 2);
-    assert!(stderr.contains("different nuclei"), "{stderr}");
+    let (lower, upper) = ("curves/demo_morse.toml", "curves/demo_upper.toml");
+    refused(
+        &[
+            "franck-condon",
+            "--lower",
+            lower,
+            "--upper",
+            "curves/h2_born_oppenheimer.toml",
+        ],
+        &["different nuclei"],
+    );
     // A range beyond the bound levels.
-    let (code, _, stderr) = run(&[
-        "franck-condon",
-        "--lower",
-        "curves/demo_morse.toml",
-        "--upper",
-        "curves/demo_upper.toml",
-        "--v-upper",
-        "0-500",
-    ]);
-    assert_eq!(code, 2);
-    assert!(stderr.contains("binds v = 0.."), "{stderr}");
+    refused(
+        &[
+            "franck-condon",
+            "--lower",
+            lower,
+            "--upper",
+            upper,
+            "--v-upper",
+            "0-500",
+        ],
+        &["binds v = 0.."],
+    );
     // Homonuclear: infrared-inactive by symmetry, said plainly.
-    let (code, _, stderr) = run(&[
-        "dipole",
-        "curves/h2_born_oppenheimer.toml",
-        "--dipole",
-        "curves/demo_dipole.toml",
-    ]);
-    assert_eq!(code, 2);
-    assert!(stderr.contains("infrared-inactive"), "{stderr}");
+    refused(
+        &[
+            "dipole",
+            "curves/h2_born_oppenheimer.toml",
+            "--dipole",
+            "curves/demo_dipole.toml",
+        ],
+        &["infrared-inactive"],
+    );
     // A dipole function in an unknown unit.
     let dir = tempfile::tempdir().unwrap();
     let bad = dir.path().join("bad_dipole.toml");
@@ -432,16 +450,9 @@ fn band_refusals() {
         "[dipole]\nr_ref = \"1.5 angstrom\"\nunit = \"statC cm\"\ncoefficients = [1.0]\n",
     )
     .unwrap();
-    let (code, _, stderr) = run(&[
-        "dipole",
-        "curves/demo_morse.toml",
-        "--dipole",
-        bad.to_str().unwrap(),
-    ]);
-    assert_eq!(code, 2);
-    assert!(
-        stderr.contains("line 3") && stderr.contains("debye"),
-        "{stderr}"
+    refused(
+        &["dipole", lower, "--dipole", bad.to_str().unwrap()],
+        &["line 3", "debye"],
     );
 }
 

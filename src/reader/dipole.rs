@@ -63,7 +63,14 @@ pub fn parse_dipole_toml(
     };
     origin.check_keys(
         dipole,
-        &["form", "r_ref", "unit", "length_unit", "coefficients", "file"],
+        &[
+            "form",
+            "r_ref",
+            "unit",
+            "length_unit",
+            "coefficients",
+            "file",
+        ],
         "[dipole]",
     )?;
     let polynomial = choice(
@@ -74,9 +81,9 @@ pub fn parse_dipole_toml(
     )?
     .unwrap_or(true);
     if !polynomial {
-        let file = origin
-            .string(dipole, "file")?
-            .ok_or_else(|| origin.error(Some("form"), "form = \"points\" needs file = \"...csv\""))?;
+        let file = origin.string(dipole, "file")?.ok_or_else(|| {
+            origin.error(Some("form"), "form = \"points\" needs file = \"...csv\"")
+        })?;
         let path = base_dir.join(file);
         let data = std::fs::read_to_string(&path).map_err(|e| {
             origin.error(

@@ -553,7 +553,9 @@ fn build_points(table: &toml::Table, origin: &Origin) -> Result<BuiltCurve, Inpu
             .unwrap_or(true)
             {
                 true => {
-                    let powers = tail_origin.numbers(tail, "powers")?.unwrap_or_else(|| vec![6.0]);
+                    let powers = tail_origin
+                        .numbers(tail, "powers")?
+                        .unwrap_or_else(|| vec![6.0]);
                     if powers.is_empty() || powers.iter().any(|&p| p <= 0.0) {
                         return Err(tail_origin.error(
                             Some("powers"),
@@ -884,18 +886,6 @@ const PARAMETER_KEYS: &[&str] = &[
     "r_shift",
 ];
 
-/// The unit a written parameter of each dimension carries.
-fn written_unit(dimension: Dimension) -> &'static str {
-    match dimension {
-        Dimension::Energy => "cm-1",
-        Dimension::Length => "angstrom",
-        Dimension::InverseLength => "1/angstrom",
-        Dimension::ForceConstant => "N/m",
-        Dimension::Mass => "u",
-        Dimension::DipoleMoment => "debye",
-    }
-}
-
 /// The text of `setup`'s curve file with the parameters of `curve` (the same model, new
 /// values) written in, and `note` as its note. Every number is written in full precision
 /// with its unit; a points file is referred to by a path that works from `out_dir`.
@@ -918,10 +908,8 @@ pub fn fitted_curve_file(
         let value = match parameter.dimension {
             None => toml::Value::Float(parameter.value),
             Some(dimension) => {
-                let unit = written_unit(dimension);
-                let size = units::parse_unit(unit, dimension)
-                    .expect("the written units are in the unit table");
-                toml::Value::String(format!("{} {unit}", size.from_atomic(parameter.value)))
+                let unit = units::customary_unit(dimension);
+                toml::Value::String(format!("{} {unit}", unit.from_atomic(parameter.value)))
             }
         };
         table.insert(parameter.name.to_string(), value);

@@ -318,33 +318,25 @@ pub fn constants_table(
         "omega_e_z_e",
     ];
     let vib_signs = [1.0, 1.0, -1.0, 1.0, 1.0];
-    for (k, (c, e)) in vibrational
-        .coefficients
-        .iter()
-        .zip(&vibrational.standard_errors)
-        .enumerate()
-    {
-        let name = vib_names
-            .get(k)
-            .map_or_else(|| format!("G_coefficient_{k}"), |n| n.to_string());
-        push(&name, vib_signs.get(k).copied().unwrap_or(1.0) * c, *e);
-    }
-    push("G_fit_rms", vibrational.rms_residual, 0.0);
+    // Each coefficient under its name of the trade (with its sign), later ones numbered.
+    let mut push_fit =
+        |fit: &crate::constants::PolynomialFit, names: &[&str], signs: &[f64], prefix: &str| {
+            for (k, (c, e)) in fit
+                .coefficients
+                .iter()
+                .zip(&fit.standard_errors)
+                .enumerate()
+            {
+                let name = names
+                    .get(k)
+                    .map_or_else(|| format!("{prefix}_coefficient_{k}"), |n| n.to_string());
+                push(&name, signs.get(k).copied().unwrap_or(1.0) * c, *e);
+            }
+            push(&format!("{prefix}_fit_rms"), fit.rms_residual, 0.0);
+        };
+    push_fit(vibrational, &vib_names, &vib_signs, "G");
     if let Some(fit) = rotational {
-        let names = ["B_e", "alpha_e", "gamma_e"];
-        let signs = [1.0, -1.0, 1.0];
-        for (k, (c, e)) in fit
-            .coefficients
-            .iter()
-            .zip(&fit.standard_errors)
-            .enumerate()
-        {
-            let name = names
-                .get(k)
-                .map_or_else(|| format!("B_coefficient_{k}"), |n| n.to_string());
-            push(&name, signs.get(k).copied().unwrap_or(1.0) * c, *e);
-        }
-        push("B_fit_rms", fit.rms_residual, 0.0);
+        push_fit(fit, &["B_e", "alpha_e", "gamma_e"], &[1.0, -1.0, 1.0], "B");
     }
     if let Some(d0) = birge_sponer {
         push("D_0_birge_sponer", d0, 0.0);
@@ -553,13 +545,8 @@ fn parameter_in_display(
             format!("1/{}", units.length.name),
         ),
         Some(other) => {
-            let unit = match other {
-                Dimension::ForceConstant => "N/m",
-                Dimension::Mass => "u",
-                _ => "debye",
-            };
-            let size = crate::units::parse_unit(unit, other).expect("a unit of the table");
-            (size.from_atomic(value), unit.into())
+            let unit = crate::units::customary_unit(other);
+            (unit.from_atomic(value), unit.name.into())
         }
     }
 }
@@ -697,11 +684,6 @@ pub fn franck_condon_matrix(set: &crate::bands::BandSet, title: &str) -> Table {
     }
 }
 
-fn debye() -> &'static crate::units::Unit {
-    crate::units::parse_unit("debye", crate::units::Dimension::DipoleMoment)
-        .expect("debye is in the unit table")
-}
-
 /// Every band in long form: origins; between two curves overlaps, q and r-centroids (within
 /// one curve, where the levels are orthogonal, these are left out); with a dipole function,
 /// moments, A coefficients and oscillator strengths.
@@ -729,7 +711,10 @@ pub fn bands_table(
             }
             if with_moment {
                 let number = |x: Option<f64>| x.map_or(Cell::Missing, Cell::Number);
-                row.push(number(b.moment.map(|m| debye().from_atomic(m))));
+                row.push(number(b.moment.map(|m| {
+                    crate::units::customary_unit(crate::units::Dimension::DipoleMoment)
+                        .from_atomic(m)
+                })));
                 row.push(number(b.einstein_a));
                 row.push(number(b.oscillator_strength));
             }
