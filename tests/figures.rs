@@ -99,6 +99,8 @@ fn every_figure_kind_renders_to_svg_and_png() {
         let image = image::open(&png).unwrap().to_luma8();
         // The column preset: 3.4 x 2.6 inches at 300 dpi.
         assert_eq!((image.width(), image.height()), (1020, 780), "{name}");
+        // Our own threshold for "not blank": a plain white image has variance 0; any drawn
+        // axes and curves put it in the hundreds or more.
         let (_, variance) = grey_statistics(&image, 0..image.height());
         assert!(variance > 100.0, "{name}: blank PNG (variance {variance})");
 
@@ -164,6 +166,7 @@ fn figure_size_options_and_a_bad_extension() {
         .unwrap();
     assert!(output.status.success());
     let image = image::open(&png).unwrap();
+    // The slide preset, 10 x 5.6 inches, at the 100 dpi asked for.
     assert_eq!((image.width(), image.height()), (1000, 560));
     let output = Command::cargo_bin("rungs")
         .unwrap()
