@@ -708,13 +708,8 @@ fn solve_one(
         base = covering(counting.coarse.start, end, counting.coarse.step);
         base.intervals = base.intervals.min(counting.coarse.intervals);
     }
-    // A step the user fixed is never refined: a level that misses the tolerance on it is
-    // reported as not converged.
-    let may_refine = settings.step.is_none();
-    let mut refinement = 0;
-    let mut box_growths = 0;
     let mut start = None;
-    loop {
+    for box_growths in 0.. {
         let stretch = if fixed_range {
             None
         } else {
@@ -724,16 +719,7 @@ fn solve_one(
             Some(s) => covering(base.start, s.x_of(base.end()), base.step),
             None => base,
         };
-        let solved = richardson_level(
-            job,
-            v,
-            bracket,
-            start,
-            coarsest.refined(1 << refinement),
-            stretch.as_ref(),
-        )?;
-        start = Some(solved.level.energy - floor);
-        guess = solved.level.energy;
+        let solved = climb_ladder(job, v, bracket, start, coarsest, stretch.as_ref())?;
         // The box must also hold the converged level's tail (its first size came from a guess).
         if !fixed_range && base.end() < cap && box_growths < 4 {
             let needed = grid::outer_bound(
@@ -745,19 +731,16 @@ fn solve_one(
             if needed > base.end() * 1.0001 {
                 base = covering(base.start, needed, base.step);
                 base.intervals = base.intervals.min(counting.coarse.intervals);
-                box_growths += 1;
+                start = Some(solved.level.energy - floor);
+                guess = solved.level.energy;
                 continue;
             }
         }
-        if solved.level.converged || !may_refine || refinement == MAX_REFINEMENTS {
-            return Ok(solved);
-        }
-        refinement += 1;
+        return Ok(solved);
     }
+    unreachable!("the loop returns")
 }
 
-/// Level v on grids with steps h, h/2, h/4 over `coarsest`'s range, Richardson-extrapolated.
-/// `start` (relative to the curve minimum) seeds the first grid when a nearby value is known.
 /// Points per decay length 1/kappa in a stretched tail on the coarsest grid.
 const TAIL_POINTS_PER_DECAY_LENGTH: f64 = 4.0;
 
@@ -792,7 +775,25 @@ fn tail_stretch(
     })
 }
 
-fn richardson_level(
+/// What a level gives on one grid of its Richardson ladder.
+#[derive(Debug, Clone, Copy, Default)]
+struct Rung {
+    energy: f64,
+    mean_r: f64,
+    mean_inverse_r2: f64,
+    distortion: f64,
+    sextic: f64,
+}
+
+/// Level v on grids with steps h, h/2, h/4, ... over `coarsest`'s range, each seeded by the
+/// one before (`start`, relative to the curve minimum, seeds the first when a nearby value is
+/// known). After each new grid the estimate is formed from the last rungs: three rungs give a
+/// Richardson value (error series h^4, h^6) whose error estimate is its last step; two rungs
+/// suffice when their one Richardson step is already far below the tolerance (the value is
+/// then that extrapolation, error O(h^6), and the estimate the step itself, an upper bound of
+/// the same kind). A step the user fixed is never refined: a level that misses the tolerance
+/// after three rungs on it is reported as not converged.
+fn climb_ladder(
     job: &Job,
     v: usize,
     bracket: (f64, f64),
@@ -802,82 +803,139 @@ fn richardson_level(
 ) -> Result<Solved, SolverError> {
     let (problem, settings, facts) = (job.problem, job.settings, job.facts);
     let lattice = &job.counting.lattice;
-    let floor = facts.curve_minimum;
-    let grids = [1usize, 2, 4].map(|f| coarsest.refined(f));
-    let mut energies = [0.0; 3];
-    let mut mean_r = [0.0; 3];
-    let mut mean_inv = [0.0; 3];
-    let mut distortion = [0.0; 3];
-    let mut sextic = [0.0; 3];
-    let mut last = None;
-    let mut used = 0;
+    let last_rung = if settings.step.is_none() {
+        MAX_REFINEMENTS + 2
+    } else {
+        2
+    };
+    let mut rungs: Vec<Rung> = Vec::with_capacity(last_rung + 1);
     let (mut lo, mut hi) = bracket;
-    for (k, g) in grids.iter().enumerate() {
+    for k in 0..=last_rung {
+        let g = coarsest.refined(1 << k);
         let numerov =
-            check_stretched_grid(problem, facts, g, Some(lattice), stretch.map(|s| (s, lo)))?;
-        let seed = if k == 0 { start } else { Some(energies[k - 1]) };
+            check_stretched_grid(problem, facts, &g, Some(lattice), stretch.map(|s| (s, lo)))?;
+        // Seed: the rung before, moved by the change the error series h^4 predicts (1/16 of
+        // the last change) once two rungs are known.
+        let seed = match rungs.as_slice() {
+            [.., a, b] => Some(b.energy + (b.energy - a.energy) / 16.0),
+            [a] => Some(a.energy),
+            [] => start,
+        };
         let level = numerov
             .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
             .ok_or_else(|| SolverError::Bracket {
                 v: v as u32,
                 grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
             })?;
-        energies[k] = level.energy;
-        (mean_r[k], mean_inv[k]) = numerov.expectations(&level.phi);
-        // D_v is smooth in h too; its two finest values and one Richardson step suffice.
+        let mut rung = Rung {
+            energy: level.energy,
+            ..Rung::default()
+        };
+        (rung.mean_r, rung.mean_inverse_r2) = numerov.expectations(&level.phi);
         if settings.distortion {
-            (_, distortion[k], sextic[k]) = numerov.rotational_constants(level.energy, &level.phi);
+            (_, rung.distortion, rung.sextic) =
+                numerov.rotational_constants(level.energy, &level.phi);
         }
+        rungs.push(rung);
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         (lo, hi) = (level.energy - shift, level.energy + shift);
-        last = Some((level, numerov));
-        used = k + 1;
-        // Two grids suffice when their one Richardson step is already far below the
-        // tolerance: the reported value is then that extrapolation (error O(h^6)) and its
-        // estimate the step itself, an upper bound of the same kind as with three grids.
-        if k == 1 && (energies[1] - energies[0]).abs() / 15.0 <= EARLY_EXIT * settings.tolerance {
-            break;
+        let Some(estimate) = ladder_estimate(&rungs, settings.tolerance) else {
+            continue;
+        };
+        if estimate.error <= settings.tolerance || k == last_rung {
+            return Ok(finish_level(job, v, &rungs, estimate, level, numerov));
         }
     }
-    let extrapolate = |values: [f64; 3]| -> (f64, f64) {
-        if used == 2 {
-            let step = (values[1] - values[0]) / 15.0;
-            (values[1] + step, step.abs())
-        } else {
-            richardson(values)
+    unreachable!("the last rung returns")
+}
+
+/// The Richardson value of a ladder and which rungs made it.
+struct LadderEstimate {
+    /// Rungs used: 2 (one Richardson step) or 3 (two).
+    used: usize,
+    energy: f64,
+    error: f64,
+}
+
+/// The best estimate from the last rungs of a ladder (None with a single rung, or with two
+/// whose step is not yet small enough to stand alone).
+fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
+    let energies: Vec<f64> = rungs.iter().map(|r| r.energy).collect();
+    let n = energies.len();
+    if n >= 3 {
+        let (energy, error) = richardson([energies[n - 3], energies[n - 2], energies[n - 1]]);
+        let three = LadderEstimate {
+            used: 3,
+            energy,
+            error,
+        };
+        if error <= tolerance {
+            return Some(three);
+        }
+        return Some(two_rung(&energies[n - 2..], tolerance).unwrap_or(three));
+    }
+    (n == 2).then(|| two_rung(&energies, tolerance)).flatten()
+}
+
+/// One Richardson step over the last two rungs, when it is below EARLY_EXIT of the tolerance.
+fn two_rung(energies: &[f64], tolerance: f64) -> Option<LadderEstimate> {
+    let step = (energies[1] - energies[0]) / 15.0;
+    (step.abs() <= EARLY_EXIT * tolerance).then_some(LadderEstimate {
+        used: 2,
+        energy: energies[1] + step,
+        error: step.abs(),
+    })
+}
+
+/// The level from its ladder: the energy, <r> and <r^-2> extrapolated like the energy, D_v and
+/// H_v from one Richardson step over the two finest rungs, turning points at the final energy.
+fn finish_level(
+    job: &Job,
+    v: usize,
+    rungs: &[Rung],
+    estimate: LadderEstimate,
+    level: numerov::GridLevel,
+    finest: NumerovGrid,
+) -> Solved {
+    let (problem, settings, facts) = (job.problem, job.settings, job.facts);
+    let n = rungs.len();
+    let used = &rungs[n - estimate.used..];
+    let extrapolate = |value: fn(&Rung) -> f64| -> f64 {
+        match used {
+            [a, b] => value(b) + (value(b) - value(a)) / 15.0,
+            [a, b, c] => richardson([value(a), value(b), value(c)]).0,
+            _ => unreachable!("two or three rungs"),
         }
     };
-    let (energy, error_estimate) = extrapolate(energies);
-    let (r_avg, _) = extrapolate(mean_r);
-    let (inv_r2, _) = extrapolate(mean_inv);
-    let (finest, previous) = (used - 1, used - 2);
+    let one_step = |value: fn(&Rung) -> f64| -> f64 {
+        let (a, b) = (&rungs[n - 2], &rungs[n - 1]);
+        value(b) + (value(b) - value(a)) / 15.0
+    };
     let (centrifugal_distortion, sextic_distortion) = if settings.distortion {
-        (
-            distortion[finest] + (distortion[finest] - distortion[previous]) / 15.0,
-            sextic[finest] + (sextic[finest] - sextic[previous]) / 15.0,
-        )
+        (one_step(|r| r.distortion), one_step(|r| r.sextic))
     } else {
         (f64::NAN, f64::NAN)
     };
-    let (level, finest) = last.expect("two or three grids solved");
-    let absolute = energy + floor;
+    let mean_r = extrapolate(|r| r.mean_r);
+    let inv_r2 = extrapolate(|r| r.mean_inverse_r2);
+    let absolute = estimate.energy + facts.curve_minimum;
     let (inner, outer) = turning(
         problem,
         facts,
         absolute,
         10.0 * finest.radius(finest.grid.intervals),
     );
-    Ok(Solved {
+    Solved {
         level: Level {
             v: v as u32,
             j: problem.j,
             energy: absolute,
-            error_estimate,
-            converged: error_estimate <= settings.tolerance,
+            error_estimate: estimate.error,
+            converged: estimate.error <= settings.tolerance,
             inner_turning_point: inner,
             outer_turning_point: outer,
-            mean_r: r_avg,
+            mean_r,
             mean_inverse_r2: inv_r2,
             rotational_constant: inv_r2 / (2.0 * problem.reduced_mass),
             centrifugal_distortion,
@@ -892,7 +950,7 @@ fn richardson_level(
             }
         }),
         grid: finest.grid,
-    })
+    }
 }
 
 /// Every bound (v, J): J = Omega, Omega + 1, ... until no level is bound, solved in parallel

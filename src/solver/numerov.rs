@@ -249,37 +249,36 @@ impl NumerovGrid {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
         let h2_12 = h2 / 12.0;
-        let w = &self.twice_mu_v;
-        // a_i and 1/f_i at point i.
-        let diagonal = |i: usize| {
-            let q = w[i] - c(i) * energy;
-            let inverse_factor = 1.0 / (1.0 - h2_12 * q);
-            (2.0 + h2 * q * inverse_factor, inverse_factor)
-        };
-        // Matching point: the outermost point inside the classically allowed region.
-        let m = (1..n)
-            .rev()
-            .find(|&i| w[i] < c(i) * energy)
-            .unwrap_or(n / 2)
+        // a_i = 2 + h^2 Q_i / f_i at every point, in a pass of its own: it does not depend on
+        // psi, so its divisions pipeline instead of lengthening the recurrence.
+        let a: Vec<f64> = self
+            .twice_mu_v
+            .iter()
+            .enumerate()
+            .map(|(i, w)| {
+                let q = w - c(i) * energy;
+                2.0 + h2 * q / (1.0 - h2_12 * q)
+            })
+            .collect();
+        // Matching point: the outermost point inside the classically allowed region (Q < 0,
+        // that is a < 2, since f > 0).
+        let m = a[1..n]
+            .iter()
+            .rposition(|&a| a < 2.0)
+            .map_or(n / 2, |k| k + 1)
             .clamp(2.min(n - 1), (n - 2).max(1));
-        const TINY: f64 = 1e-30;
-        const HUGE: f64 = 1e250;
         let mut y = vec![0.0; n + 1];
+        // Outward from 0 to m: y_{i+1} = a_i y_i - y_{i-1}, i = 1 .. m - 1 (slot k is y_{k+2}).
         y[1] = TINY;
-        for i in 1..m {
-            y[i + 1] = diagonal(i).0 * y[i] - y[i - 1];
-            if y[i + 1].abs() > HUGE {
-                y[..=i + 1].iter_mut().for_each(|v| *v /= HUGE);
-            }
+        for k in recur(y[2..=m].iter_mut().zip(&a[1..m])) {
+            y[..k + 2].iter_mut().for_each(|v| *v /= HUGE);
         }
         let outward_at_m = y[m];
-        // Inward from the outer end into the same vector, from n - 1 down to m.
+        // Inward from the outer end into the same vector: y_{i-1} = a_i y_i - y_{i+1},
+        // i = n - 1 down to m + 1 (slot k is y_{n-2-k}).
         y[n - 1] = TINY;
-        for i in (m + 1..n).rev() {
-            y[i - 1] = diagonal(i).0 * y[i] - y[i + 1];
-            if y[i - 1].abs() > HUGE {
-                y[i - 1..].iter_mut().for_each(|v| *v /= HUGE);
-            }
+        for k in recur(y[m..n - 1].iter_mut().rev().zip(a[m + 1..n].iter().rev())) {
+            y[n - 1 - k..].iter_mut().for_each(|v| *v /= HUGE);
         }
         let scale = if y[m] != 0.0 {
             outward_at_m / y[m]
@@ -287,11 +286,14 @@ impl NumerovGrid {
             1.0
         };
         y[m..n].iter_mut().for_each(|v| *v *= scale);
-        let defect = diagonal(m).0 * y[m] - y[m - 1] - y[m + 1];
+        let defect = a[m] * y[m] - y[m - 1] - y[m + 1];
+        // phi_i = Y_i / f_i, and 1 / f_i = 1 + h^2 Q_i / (12 f_i) = (a_i + 10) / 12.
         let mut norm = 0.0;
-        for (i, value) in y.iter_mut().enumerate().take(n).skip(1) {
-            *value *= diagonal(i).1;
-            norm += c(i) * *value * *value;
+        let (y_inner, a_inner) = (&mut y[1..n], &a[1..n]);
+        for (k, (value, a)) in y_inner.iter_mut().zip(a_inner).enumerate() {
+            let phi = *value * (a + 10.0) * (1.0 / 12.0);
+            *value = phi;
+            norm += c(k + 1) * phi * phi;
         }
         // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
         let correction = y[m] * defect / (h2 * norm);
@@ -497,6 +499,31 @@ impl NumerovGrid {
             energy = next;
         }
     }
+}
+
+/// Start of a shot: psi is set to this at the first point inside each end.
+const TINY: f64 = 1e-30;
+/// A shot is rescaled by this when it grows past it (deep forbidden regions of fixed grids).
+const HUGE: f64 = 1e250;
+
+/// The three-term recurrence y_{k+1} = a_k y_k - y_{k-1} over (slot, a_k) pairs, slot k
+/// receiving y_{k+1}: it starts from y_{-1} = 0 and y_0 = TINY and runs in registers. When |y|
+/// passes HUGE the running values are divided by HUGE, and the slot index is returned so
+/// that the caller divides everything written before it too.
+fn recur<'a>(pairs: impl Iterator<Item = (&'a mut f64, &'a f64)>) -> Vec<usize> {
+    let mut rescaled = Vec::new();
+    let (mut previous, mut current) = (0.0, TINY);
+    for (k, (slot, a)) in pairs.enumerate() {
+        let mut next = a * current - previous;
+        if next.abs() > HUGE {
+            rescaled.push(k);
+            next /= HUGE;
+            current /= HUGE;
+        }
+        *slot = next;
+        (previous, current) = (current, next);
+    }
+    rescaled
 }
 
 /// Sign changes along a vector, zeros skipped.
