@@ -10,10 +10,12 @@
 //!
 //! The grid is chosen automatically (see [`grid`]); the tails of weakly bound levels are
 //! stretched (see [`mapping`]) so a level reaching hundreds of bohr needs thousands of points,
-//! not hundreds of thousands. The user may fix the range and step (no stretch then). Each
-//! level carries its vibrational number v from the Sturm count, an error estimate and a
-//! converged flag against the tolerance; the number of bound levels is stated with the box
-//! that established it. This module knows nothing of post-processing or reports.
+//! not hundreds of thousands. The user may fix the range and step (no stretch then). The
+//! number of bound levels comes from a Sturm count at the limit, stated with the box that
+//! established it. Levels are found in order of v, each seeded by extrapolating the ones below
+//! it, and each carries its vibrational number v certified by its nodes (or Sturm counts), an
+//! error estimate and a converged flag against the tolerance. This module knows nothing of
+//! post-processing or reports.
 
 mod dvr;
 pub mod grid;
@@ -65,7 +67,7 @@ impl<'a> RadialProblem<'a> {
 /// Which method solves the radial equation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Method {
-    /// Numerov with Sturm bisection, Cooley correction and Richardson extrapolation.
+    /// Numerov with Cooley correction, node and Sturm counts, and Richardson extrapolation.
     #[default]
     Numerov,
     /// Colbert-Miller sinc-DVR, dense eigensolver (reference; O(N^3)).
@@ -274,6 +276,8 @@ struct WellFacts {
     /// The energy whose local wavelength sets the grid step: the top, but at least two
     /// harmonic quanta above the floor, so a shallow well (high J) is still resolved.
     step_energy: f64,
+    /// hbar omega of the harmonic approximation at the floor, hartree.
+    harmonic_quantum: f64,
 }
 
 fn well_facts(
@@ -316,11 +320,12 @@ fn well_facts(
         top_is_limit,
         curve_minimum: bare.v_min,
         step_energy: top.max(effective.v_min + 2.0 * quantum),
+        harmonic_quantum: quantum,
     })
 }
 
 /// Points per local wavelength of the coarsest Numerov grid (h, h/2, h/4 follow).
-const NUMEROV_POINTS_PER_WAVELENGTH: f64 = 8.0;
+const NUMEROV_POINTS_PER_WAVELENGTH: f64 = 10.0;
 /// A level stops after two Numerov grids when their Richardson step is below this fraction
 /// of the tolerance.
 const EARLY_EXIT: f64 = 0.1;
@@ -418,21 +423,25 @@ fn check_stretched_grid(
         });
         return validate(problem, facts, grid, numerov, lowest);
     }
-    let from_lattice = lattice.and_then(|fine| {
-        let stride = (grid.step / fine.grid.step).round();
-        let aligned = grid.start == fine.grid.start
-            && stride >= 1.0
-            && (grid.step - stride * fine.grid.step).abs() <= 1e-12 * grid.step;
-        aligned
-            .then(|| fine.subsample(stride as usize, grid.intervals))
-            .flatten()
-    });
-    let numerov = from_lattice.unwrap_or_else(|| {
-        NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
-            problem.effective(r) - floor
-        })
-    });
+    let numerov = lattice
+        .and_then(|fine| on_lattice(fine, grid))
+        .unwrap_or_else(|| {
+            NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
+                problem.effective(r) - floor
+            })
+        });
     validate(problem, facts, grid, numerov, lowest_energy(facts))
+}
+
+/// A plain grid as a subsampling of a finer one it is aligned with, if it is.
+fn on_lattice(lattice: &NumerovGrid, grid: &UniformGrid) -> Option<NumerovGrid> {
+    let stride = (grid.step / lattice.grid.step).round();
+    let aligned = grid.start == lattice.grid.start
+        && stride >= 1.0
+        && (grid.step - stride * lattice.grid.step).abs() <= 1e-12 * grid.step;
+    aligned
+        .then(|| lattice.subsample(stride as usize, grid.intervals))
+        .flatten()
 }
 
 /// Refuse a grid where V_eff is not finite or the Numerov factor 1 - h^2 Q/12 is not positive
@@ -567,29 +576,6 @@ fn counting_box(
     })
 }
 
-/// Brackets (lo, hi) isolating each of the first `count` levels on a grid (energies relative
-/// to the curve minimum), by recursive bisection on the Sturm count.
-fn isolate_levels(numerov: &NumerovGrid, lo: f64, hi: f64, count: usize) -> Vec<(f64, f64)> {
-    let mut brackets = vec![(lo, hi); count];
-    let mut stack = vec![(lo, hi, numerov.count_below(lo), numerov.count_below(hi))];
-    while let Some((a, b, ca, cb)) = stack.pop() {
-        if cb <= ca || ca >= count {
-            continue;
-        }
-        if cb == ca + 1 || b - a < 1e-15 * (1.0 + b.abs()) {
-            for bracket in brackets.iter_mut().take(cb.min(count)).skip(ca) {
-                *bracket = (a, b);
-            }
-            continue;
-        }
-        let mid = 0.5 * (a + b);
-        let cm = numerov.count_below(mid);
-        stack.push((a, mid, ca, cm));
-        stack.push((mid, b, cm, cb));
-    }
-    brackets
-}
-
 /// Per-level result before assembly.
 struct Solved {
     level: Level,
@@ -604,7 +590,6 @@ fn solve_numerov(
 ) -> Result<LevelSet, SolverError> {
     let counting = counting_box(problem, settings, facts)?;
     let floor = facts.curve_minimum;
-    let coarse = check_grid(problem, facts, &counting.coarse, Some(&counting.lattice))?;
     let mut count = counting.audit.bound_levels;
     if let Some(v) = settings.highest_v {
         count = count.min(v as usize + 1);
@@ -612,19 +597,31 @@ fn solve_numerov(
     if count == 0 {
         return Err(SolverError::NothingBound { j: problem.j });
     }
-    let brackets = isolate_levels(&coarse, facts.floor - floor, facts.top - floor, count);
     let fixed_range = settings.r_range.is_some();
-    let solved: Vec<Result<Solved, SolverError>> = (0..count)
+    let job = Job {
+        problem,
+        settings,
+        facts,
+        counting: &counting,
+        fixed_range,
+    };
+    // Each level's first rung, in order of v, seeded by extrapolating the first-rung energies
+    // below it (they share the step, so their discretisation error varies smoothly with v);
+    // then the rest of every ladder in parallel.
+    let mut ladders: Vec<Ladder> = Vec::with_capacity(count);
+    for v in 0..count {
+        let below: Vec<f64> = ladders.iter().map(|l| l.rungs[0].energy).collect();
+        let (seed, lo) = first_rung_seed(facts, &below);
+        let hi = facts.top - floor;
+        // A seed is a guess: its box ends in the counting box (it may grow once the level is
+        // known, see solve_one).
+        let cap = counting.coarse.end();
+        ladders.push(open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?);
+    }
+    let solved: Vec<Result<Solved, SolverError>> = ladders
         .into_par_iter()
-        .map(|v| {
-            let job = Job {
-                problem,
-                settings,
-                facts,
-                counting: &counting,
-            };
-            solve_one(&job, v, brackets[v], fixed_range)
-        })
+        .enumerate()
+        .map(|(v, ladder)| solve_one(&job, v, ladder))
         .collect();
     let mut levels = Vec::with_capacity(count);
     let mut wavefunctions = Vec::new();
@@ -678,61 +675,89 @@ struct Job<'a> {
     settings: &'a SolverSettings,
     facts: &'a WellFacts,
     counting: &'a Counting,
+    /// The user fixed the grid range: no box is sized per level and no tail stretched.
+    fixed_range: bool,
 }
 
-fn solve_one(
+/// The first-rung seed of the next level from the first-rung energies below it (relative to
+/// the curve minimum): harmonic steps for v = 0 and 1, then linear and quadratic
+/// extrapolation. Returns the seed and a lower bound for a bracket.
+fn first_rung_seed(facts: &WellFacts, below: &[f64]) -> (f64, f64) {
+    let floor = facts.floor - facts.curve_minimum;
+    let quantum = facts.harmonic_quantum;
+    match below {
+        [] => (floor + 0.5 * quantum, floor),
+        [e0] => (e0 + 2.0 * (e0 - floor), *e0),
+        [e0, e1] => (2.0 * e1 - e0, *e1),
+        [.., e0, e1, e2] => (3.0 * e2 - 3.0 * e1 + e0, *e2),
+    }
+}
+
+/// Level v's box (sized by the `seed` energy, relative to the curve minimum, and ending by
+/// `cap` at the latest) and its ladder with the first rung solved, Cooley steps from the seed
+/// confirmed by the node count, or inside the `bracket` by Sturm counts when that fails.
+fn open_ladder(
     job: &Job,
     v: usize,
+    seed: f64,
     bracket: (f64, f64),
-    fixed_range: bool,
-) -> Result<Solved, SolverError> {
-    let (problem, settings, facts, counting) = (job.problem, job.settings, job.facts, job.counting);
+    cap: f64,
+) -> Result<Ladder, SolverError> {
+    let (problem, facts, counting) = (job.problem, job.facts, job.counting);
     let floor = facts.curve_minimum;
-    let cap = counting.coarse.end();
-    // The box this level needs: decay past its outer turning point at the top of its bracket.
-    // When the bracket reaches the limit (the least-bound level), the top of the bracket says
-    // nothing: solve once on the coarse counting grid for a guess instead.
-    let mut guess = floor + bracket.1.min(facts.top - floor);
     let mut base = counting.coarse;
-    if !fixed_range && bracket.1 >= facts.top - floor {
-        let coarse = check_grid(problem, facts, &counting.coarse, Some(&counting.lattice))?;
-        if let Some(level) =
-            coarse.solve_level(v, bracket.0, bracket.1, None, 1e-3 * settings.tolerance)
-        {
-            guess = floor + level.energy;
-        }
-    }
-    if !fixed_range {
+    let mut stretch = None;
+    if !job.fixed_range {
+        let guess = floor + seed;
         let (_, outer) = turning(problem, facts, guess, cap);
         let end = grid::outer_bound(problem, guess, outer, cap);
         base = covering(counting.coarse.start, end, counting.coarse.step);
-        base.intervals = base.intervals.min(counting.coarse.intervals);
+        stretch = tail_stretch(problem, facts, guess, &base);
     }
-    let mut start = None;
+    let coarsest = match &stretch {
+        Some(s) => covering(base.start, s.x_of(base.end()), base.step),
+        None => base,
+    };
+    let mut ladder = Ladder {
+        base,
+        coarsest,
+        stretch,
+        rungs: Vec::new(),
+        bracket,
+        finest: None,
+    };
+    ladder.climb(job, v, Some(seed))?;
+    Ok(ladder)
+}
+
+/// Climb a level's ladder until its estimate meets the tolerance. The box must also hold the
+/// converged level's tail (it was sized from a seed, inside the counting box): if it does not,
+/// the ladder starts again in a box sized by the converged energy, up to the outer cap.
+fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverError> {
+    let (problem, facts) = (job.problem, job.facts);
+    let floor = facts.curve_minimum;
+    let cap = job.settings.outer_cap;
     for box_growths in 0.. {
-        let stretch = if fixed_range {
-            None
-        } else {
-            tail_stretch(problem, facts, guess, &base)
+        let solved = loop {
+            if let Some(solved) = ladder.climb(job, v, None)? {
+                break solved;
+            }
         };
-        let coarsest = match &stretch {
-            Some(s) => covering(base.start, s.x_of(base.end()), base.step),
-            None => base,
-        };
-        let solved = climb_ladder(job, v, bracket, start, coarsest, stretch.as_ref())?;
-        // The box must also hold the converged level's tail (its first size came from a guess).
-        if !fixed_range && base.end() < cap && box_growths < 4 {
+        if !job.fixed_range && ladder.base.end() < cap && box_growths < 4 {
             let needed = grid::outer_bound(
                 problem,
                 solved.level.energy,
                 solved.level.outer_turning_point,
                 cap,
             );
-            if needed > base.end() * 1.0001 {
-                base = covering(base.start, needed, base.step);
-                base.intervals = base.intervals.min(counting.coarse.intervals);
-                start = Some(solved.level.energy - floor);
-                guess = solved.level.energy;
+            if needed > ladder.base.end() * 1.0001 {
+                // The first rung of the new box differs from the level by about what the
+                // first rung of this one did: bracket it by a few times that (the grid's
+                // validity is checked down to the bracket's foot).
+                let energy = solved.level.energy - floor;
+                let spread = 4.0 * (ladder.rungs[0].energy - energy).abs();
+                let bracket = (energy - spread, energy + spread);
+                ladder = open_ladder(job, v, energy, bracket, cap)?;
                 continue;
             }
         }
@@ -785,41 +810,75 @@ struct Rung {
     sextic: f64,
 }
 
-/// Level v on grids with steps h, h/2, h/4, ... over `coarsest`'s range, each seeded by the
-/// one before (`start`, relative to the curve minimum, seeds the first when a nearby value is
-/// known). After each new grid the estimate is formed from the last rungs: three rungs give a
-/// Richardson value (error series h^4, h^6) whose error estimate is its last step; two rungs
-/// suffice when their one Richardson step is already far below the tolerance (the value is
-/// then that extrapolation, error O(h^6), and the estimate the step itself, an upper bound of
-/// the same kind). A step the user fixed is never refined: a level that misses the tolerance
-/// after three rungs on it is reported as not converged.
-fn climb_ladder(
-    job: &Job,
-    v: usize,
-    bracket: (f64, f64),
-    start: Option<f64>,
+/// Level v on grids with steps h, h/2, h/4, ... over one box (`coarsest`'s range), each
+/// rung seeded by the one before. After each new rung the estimate is formed from the last
+/// rungs: three give a Richardson value (error series h^4, h^6) whose error estimate is its
+/// last step; two suffice when their one Richardson step is already far below the tolerance
+/// (the value is then that extrapolation, error O(h^6), and the estimate the step itself, an
+/// upper bound of the same kind). A step the user fixed is never refined: a level that misses
+/// the tolerance after three rungs on it is reported as not converged.
+struct Ladder {
+    /// The box in r (before any stretch).
+    base: UniformGrid,
+    /// The first rung's grid (uniform in x when stretched).
     coarsest: UniformGrid,
-    stretch: Option<&mapping::Stretch>,
-) -> Result<Solved, SolverError> {
-    let (problem, settings, facts) = (job.problem, job.settings, job.facts);
-    let lattice = &job.counting.lattice;
-    let last_rung = if settings.step.is_none() {
-        MAX_REFINEMENTS + 2
-    } else {
-        2
-    };
-    let mut rungs: Vec<Rung> = Vec::with_capacity(last_rung + 1);
-    let (mut lo, mut hi) = bracket;
-    for k in 0..=last_rung {
-        let g = coarsest.refined(1 << k);
-        let numerov =
-            check_stretched_grid(problem, facts, &g, Some(lattice), stretch.map(|s| (s, lo)))?;
+    stretch: Option<mapping::Stretch>,
+    rungs: Vec<Rung>,
+    /// Energies (relative to the curve minimum) the next rung's level lies between.
+    bracket: (f64, f64),
+    /// The last rung's level and grid.
+    finest: Option<(numerov::GridLevel, NumerovGrid)>,
+}
+
+impl Ladder {
+    /// Solve the next rung (the first from `seed`, relative to the curve minimum). Returns the
+    /// level once the estimate meets the tolerance or the last rung allowed is reached.
+    fn climb(
+        &mut self,
+        job: &Job,
+        v: usize,
+        seed: Option<f64>,
+    ) -> Result<Option<Solved>, SolverError> {
+        let (problem, settings, facts) = (job.problem, job.settings, job.facts);
+        let last_rung = if settings.step.is_none() {
+            MAX_REFINEMENTS + 2
+        } else {
+            2
+        };
+        let k = self.rungs.len();
+        let g = self.coarsest.refined(1 << k);
+        let (lo, hi) = self.bracket;
+        let lattice = &job.counting.lattice;
+        // A plain rung is a subsampling of the lattice when it lies on it; otherwise each rung
+        // after the first is the one before with its step halved (only new points evaluated).
+        let numerov = match (&self.stretch, &self.finest) {
+            (None, _) if on_lattice(lattice, &g).is_some() => {
+                check_grid(problem, facts, &g, Some(lattice))?
+            }
+            (stretch, Some((_, previous))) => {
+                let floor = facts.curve_minimum;
+                let halved = previous.halved(stretch.as_ref(), &|r| problem.effective(r) - floor);
+                let lowest = if stretch.is_some() {
+                    lo
+                } else {
+                    lowest_energy(facts)
+                };
+                validate(problem, facts, &g, halved, lowest)?
+            }
+            (stretch, None) => check_stretched_grid(
+                problem,
+                facts,
+                &g,
+                Some(lattice),
+                stretch.as_ref().map(|s| (s, lo)),
+            )?,
+        };
         // Seed: the rung before, moved by the change the error series h^4 predicts (1/16 of
         // the last change) once two rungs are known.
-        let seed = match rungs.as_slice() {
+        let seed = match self.rungs.as_slice() {
             [.., a, b] => Some(b.energy + (b.energy - a.energy) / 16.0),
             [a] => Some(a.energy),
-            [] => start,
+            [] => seed,
         };
         let level = numerov
             .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
@@ -836,18 +895,27 @@ fn climb_ladder(
             (_, rung.distortion, rung.sextic) =
                 numerov.rotational_constants(level.energy, &level.phi);
         }
-        rungs.push(rung);
+        self.rungs.push(rung);
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
-        (lo, hi) = (level.energy - shift, level.energy + shift);
-        let Some(estimate) = ladder_estimate(&rungs, settings.tolerance) else {
-            continue;
+        self.bracket = (level.energy - shift, level.energy + shift);
+        self.finest = Some((level, numerov));
+        let Some(estimate) = ladder_estimate(&self.rungs, settings.tolerance) else {
+            return Ok(None);
         };
-        if estimate.error <= settings.tolerance || k == last_rung {
-            return Ok(finish_level(job, v, &rungs, estimate, level, numerov));
+        if estimate.error > settings.tolerance && k < last_rung {
+            return Ok(None);
         }
+        let (level, numerov) = self.finest.take().expect("a rung was just solved");
+        Ok(Some(finish_level(
+            job,
+            v,
+            &self.rungs,
+            estimate,
+            level,
+            numerov,
+        )))
     }
-    unreachable!("the last rung returns")
 }
 
 /// The Richardson value of a ladder and which rungs made it.

@@ -1,5 +1,5 @@
-//! The production method: Numerov's discretisation solved level by level with Sturm-sequence
-//! bisection and Cooley's energy correction, then Richardson-extrapolated in the step.
+//! The production method: Numerov's discretisation solved level by level with Cooley's energy
+//! correction, certified by node and Sturm counts, then Richardson-extrapolated in the step.
 //!
 //! Why this method. Numerov's scheme (B. Numerov, 1924) is O(h^4) and needs only V at the grid
 //! points. Written for Y_i = (1 - h^2 Q_i / 12) psi_i, with Q = 2 mu (V_eff - E), it reads
@@ -12,19 +12,22 @@
 //! h^2 Q / 12 < 1, which the grid guarantees). Its eigenvalues therefore each cross zero once,
 //! in order, as E rises, and the number of negative pivots of the LDL^T factorisation of A(E)
 //! (Sylvester's law of inertia) is exactly the number of discrete levels below E. That count
-//! costs O(N), never misses or doubles a level, and brackets level v without any guess: the
-//! node-count audit is built into the method. Inside its bracket each level is converged by
-//! Cooley's correction (J.W. Cooley, Math. Comp. 15, 363 (1961)): shoot outward and inward,
-//! match at the outer turning point, and apply
+//! costs O(N) and never misses or doubles a level. The solver (see the parent module) seeds
+//! each level from the ones below it and converges it by Cooley's correction (J.W. Cooley,
+//! Math. Comp. 15, 363 (1961)): shoot outward and inward, match at the outer turning point,
+//! and apply
 //!
 //! ```text
 //!   dE = psi_m [a_m Y_m - Y_{m-1} - Y_{m+1}] / (2 mu h^2 sum_i psi_i^2),
 //! ```
 //!
-//! a Newton step on the matching defect, safeguarded by the bracket. The discretisation error
-//! is removed by Richardson extrapolation over steps h, h/2, h/4 (error series in h^4, h^6):
-//! the difference between the last two extrapolants is the error estimate. No N x N matrix is
-//! ever built; memory and time are O(N) per level.
+//! a Newton step on the matching defect. The converged shot is the grid's eigenvector, and the
+//! k-th eigenvector of a Jacobi matrix changes sign exactly k times (the discrete Sturm
+//! oscillation theorem), so its nodes certify v; when they do not match, the level is found
+//! again inside a bracket narrowed by Sturm counts, with Cooley steps kept inside it. The
+//! discretisation error is removed by Richardson extrapolation over steps h, h/2, h/4 (error
+//! series in h^4, h^6): the difference between the last two extrapolants is the error
+//! estimate. No N x N matrix is ever built; memory and time are O(N) per level.
 
 use super::grid::UniformGrid;
 
@@ -41,6 +44,23 @@ pub struct NumerovGrid {
     /// r_i where the grid is stretched (None: r_i = x_i).
     radius: Option<Vec<f64>>,
     reduced_mass: f64,
+}
+
+/// (w, c, r) at x on a stretched grid: w = r'^2 2 mu V_eff(r(x)) + F(x), c = 2 mu r'^2.
+fn stretched_point(
+    x: f64,
+    reduced_mass: f64,
+    stretch: &super::mapping::Stretch,
+    potential: &dyn Fn(f64) -> f64,
+) -> (f64, f64, f64) {
+    let r = stretch.r(x);
+    let slope = stretch.derivatives(x).0;
+    let s = slope * slope;
+    (
+        s * 2.0 * reduced_mass * potential(r) + stretch.schwarzian_term(x),
+        2.0 * reduced_mass * s,
+        r,
+    )
 }
 
 /// One level on one grid.
@@ -81,13 +101,10 @@ impl NumerovGrid {
             Vec::with_capacity(n),
         );
         for i in 0..n {
-            let x = grid.r(i);
-            let r = stretch.r(x);
-            let slope = stretch.derivatives(x).0;
-            let s = slope * slope;
-            w.push(s * 2.0 * reduced_mass * potential(r) + stretch.schwarzian_term(x));
-            c.push(2.0 * reduced_mass * s);
-            radius.push(r);
+            let (wi, ci, ri) = stretched_point(grid.r(i), reduced_mass, stretch, potential);
+            w.push(wi);
+            c.push(ci);
+            radius.push(ri);
         }
         NumerovGrid {
             grid,
@@ -95,6 +112,51 @@ impl NumerovGrid {
             energy_weight: Some(c),
             radius: Some(radius),
             reduced_mass,
+        }
+    }
+
+    /// The same problem with half the step: the even points are this grid's, only the new
+    /// (odd) points are evaluated. `stretch` must be the one this grid was built with.
+    pub fn halved(
+        &self,
+        stretch: Option<&super::mapping::Stretch>,
+        potential: &dyn Fn(f64) -> f64,
+    ) -> NumerovGrid {
+        let grid = self.grid.refined(2);
+        let n = grid.intervals + 1;
+        let mu = self.reduced_mass;
+        let mut w = Vec::with_capacity(n);
+        match (stretch, &self.energy_weight, &self.radius) {
+            (Some(stretch), Some(weight), Some(radius)) => {
+                let (mut c, mut r) = (Vec::with_capacity(n), Vec::with_capacity(n));
+                for i in 0..n {
+                    let (wi, ci, ri) = if i % 2 == 0 {
+                        (self.twice_mu_v[i / 2], weight[i / 2], radius[i / 2])
+                    } else {
+                        stretched_point(grid.r(i), mu, stretch, potential)
+                    };
+                    w.push(wi);
+                    c.push(ci);
+                    r.push(ri);
+                }
+                NumerovGrid {
+                    grid,
+                    twice_mu_v: w,
+                    energy_weight: Some(c),
+                    radius: Some(r),
+                    reduced_mass: mu,
+                }
+            }
+            _ => {
+                for i in 0..n {
+                    w.push(if i % 2 == 0 {
+                        self.twice_mu_v[i / 2]
+                    } else {
+                        2.0 * mu * potential(grid.r(i))
+                    });
+                }
+                NumerovGrid::from_values(grid, mu, w)
+            }
         }
     }
 
@@ -248,56 +310,67 @@ impl NumerovGrid {
     fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> (Vec<f64>, f64) {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
-        let h2_12 = h2 / 12.0;
-        // a_i = 2 + h^2 Q_i / f_i at every point, in a pass of its own: it does not depend on
-        // psi, so its divisions pipeline instead of lengthening the recurrence.
-        let a: Vec<f64> = self
-            .twice_mu_v
-            .iter()
-            .enumerate()
-            .map(|(i, w)| {
-                let q = w - c(i) * energy;
-                2.0 + h2 * q / (1.0 - h2_12 * q)
-            })
-            .collect();
-        // Matching point: the outermost point inside the classically allowed region (Q < 0,
-        // that is a < 2, since f > 0).
-        let m = a[1..n]
-            .iter()
-            .rposition(|&a| a < 2.0)
-            .map_or(n / 2, |k| k + 1)
+        let w = &self.twice_mu_v;
+        // Matching point: the outermost point inside the classically allowed region (Q < 0).
+        let m = (1..n)
+            .rev()
+            .find(|&i| w[i] < c(i) * energy)
+            .unwrap_or(n / 2)
             .clamp(2.min(n - 1), (n - 2).max(1));
-        let mut y = vec![0.0; n + 1];
-        // Outward from 0 to m: y_{i+1} = a_i y_i - y_{i-1}, i = 1 .. m - 1 (slot k is y_{k+2}).
-        y[1] = TINY;
-        for k in recur(y[2..=m].iter_mut().zip(&a[1..m])) {
-            y[..k + 2].iter_mut().for_each(|v| *v /= HUGE);
+        let mut phi = vec![0.0; n + 1];
+        // Outward, i = 1 .. m - 1, from Y_0 = 0, Y_1 = TINY: ends with (Y_{m-1}, Y_m).
+        let (mut previous, mut current, mut norm_out) = (0.0, TINY, 0.0);
+        let mut i = 1;
+        while i < m {
+            let end = (i + CHUNK).min(m);
+            let points = (i..end).zip(w[i..end].iter().zip(&mut phi[i..end]));
+            (previous, current, norm_out) =
+                march(points, energy, h2, &c, previous, current, norm_out);
+            if current.abs() > HUGE {
+                phi[..end].iter_mut().for_each(|v| *v /= HUGE);
+                (previous, current, norm_out) =
+                    (previous / HUGE, current / HUGE, norm_out / (HUGE * HUGE));
+            }
+            i = end;
         }
-        let outward_at_m = y[m];
-        // Inward from the outer end into the same vector: y_{i-1} = a_i y_i - y_{i+1},
-        // i = n - 1 down to m + 1 (slot k is y_{n-2-k}).
-        y[n - 1] = TINY;
-        for k in recur(y[m..n - 1].iter_mut().rev().zip(a[m + 1..n].iter().rev())) {
-            y[n - 1 - k..].iter_mut().for_each(|v| *v /= HUGE);
+        let (outward_before, outward_at_m) = (previous, current);
+        // Inward, i = n - 1 down to m + 1, from Y_n = 0, Y_{n-1} = TINY: ends with
+        // (Y_{m+1}, Y_m).
+        let (mut previous, mut current, mut norm_in) = (0.0, TINY, 0.0);
+        let mut i = n - 1;
+        while i > m {
+            let end = i.saturating_sub(CHUNK).max(m);
+            let points = (end + 1..=i).rev().zip(
+                w[end + 1..=i]
+                    .iter()
+                    .rev()
+                    .zip(phi[end + 1..=i].iter_mut().rev()),
+            );
+            (previous, current, norm_in) =
+                march(points, energy, h2, &c, previous, current, norm_in);
+            if current.abs() > HUGE {
+                phi[end + 1..].iter_mut().for_each(|v| *v /= HUGE);
+                (previous, current, norm_in) =
+                    (previous / HUGE, current / HUGE, norm_in / (HUGE * HUGE));
+            }
+            i = end;
         }
-        let scale = if y[m] != 0.0 {
-            outward_at_m / y[m]
+        // Join the inward solution to the outward one at m.
+        let scale = if current != 0.0 {
+            outward_at_m / current
         } else {
             1.0
         };
-        y[m..n].iter_mut().for_each(|v| *v *= scale);
-        let defect = a[m] * y[m] - y[m - 1] - y[m + 1];
-        // phi_i = Y_i / f_i, and 1 / f_i = 1 + h^2 Q_i / (12 f_i) = (a_i + 10) / 12.
-        let mut norm = 0.0;
-        let (y_inner, a_inner) = (&mut y[1..n], &a[1..n]);
-        for (k, (value, a)) in y_inner.iter_mut().zip(a_inner).enumerate() {
-            let phi = *value * (a + 10.0) * (1.0 / 12.0);
-            *value = phi;
-            norm += c(k + 1) * phi * phi;
-        }
+        phi[m + 1..n].iter_mut().for_each(|v| *v *= scale);
+        let q = w[m] - c(m) * energy;
+        let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
+        let a = 2.0 + h2 * q * inverse_factor;
+        let defect = a * outward_at_m - outward_before - scale * previous;
+        phi[m] = outward_at_m * inverse_factor;
+        let norm = norm_out + scale * scale * norm_in + c(m) * phi[m] * phi[m];
         // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
-        let correction = y[m] * defect / (h2 * norm);
-        (y, correction)
+        let correction = phi[m] * defect / (h2 * norm);
+        (phi, correction)
     }
 
     /// The centrifugal distortion constant D = -E2 of a level by first-order perturbation
@@ -503,27 +576,39 @@ impl NumerovGrid {
 
 /// Start of a shot: psi is set to this at the first point inside each end.
 const TINY: f64 = 1e-30;
-/// A shot is rescaled by this when it grows past it (deep forbidden regions of fixed grids).
-const HUGE: f64 = 1e250;
+/// A shot is rescaled by this when it grows past it (deep forbidden regions of fixed grids),
+/// checked every CHUNK points: a step multiplies |psi| by at most |a| + 1 < 15 (the grid keeps
+/// h^2 Q / 12 below 1/2), so 15^32 HUGE stays far from overflow.
+const HUGE: f64 = 1e200;
+const CHUNK: usize = 32;
 
-/// The three-term recurrence y_{k+1} = a_k y_k - y_{k-1} over (slot, a_k) pairs, slot k
-/// receiving y_{k+1}: it starts from y_{-1} = 0 and y_0 = TINY and runs in registers. When |y|
-/// passes HUGE the running values are divided by HUGE, and the slot index is returned so
-/// that the caller divides everything written before it too.
-fn recur<'a>(pairs: impl Iterator<Item = (&'a mut f64, &'a f64)>) -> Vec<usize> {
-    let mut rescaled = Vec::new();
-    let (mut previous, mut current) = (0.0, TINY);
-    for (k, (slot, a)) in pairs.enumerate() {
-        let mut next = a * current - previous;
-        if next.abs() > HUGE {
-            rescaled.push(k);
-            next /= HUGE;
-            current /= HUGE;
-        }
-        *slot = next;
+/// Numerov's recurrence in Y = f psi over a run of points (i, w_i, slot), from
+/// (Y_{i-1}, Y_i) = (previous, current) in the direction of the run: at each point
+/// Q = w_i - c_i E, f = 1 - h^2 Q / 12, the slot receives phi_i = Y_i / f, the norm gains
+/// c_i phi_i^2, and Y_next = (2 + h^2 Q / f) Y_i - Y_previous. Returns the last two Y and
+/// the norm. Free of branches so the running values stay in registers; the division is off
+/// the recurrence's critical path.
+#[inline(always)]
+fn march<'a>(
+    points: impl Iterator<Item = (usize, (&'a f64, &'a mut f64))>,
+    energy: f64,
+    h2: f64,
+    weight: &impl Fn(usize) -> f64,
+    mut previous: f64,
+    mut current: f64,
+    mut norm: f64,
+) -> (f64, f64, f64) {
+    for (i, (w, slot)) in points {
+        let c = weight(i);
+        let q = w - c * energy;
+        let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
+        let phi = current * inverse_factor;
+        *slot = phi;
+        norm += c * phi * phi;
+        let next = (2.0 + h2 * q * inverse_factor) * current - previous;
         (previous, current) = (current, next);
     }
-    rescaled
+    (previous, current, norm)
 }
 
 /// Sign changes along a vector, zeros skipped.
