@@ -25,25 +25,36 @@ pub struct Stretch {
 }
 
 impl Stretch {
-    fn logistic(&self, x: f64) -> f64 {
-        1.0 / (1.0 + (-(x - self.onset) / self.width).exp())
+    /// (r, r', F) at x with one exponential: t = (x - x_s)/w, e = exp(-|t|), softplus(t) =
+    /// max(t, 0) + ln(1 + e), and the logistic sigma(t) = 1/(1 + e) for t >= 0, e/(1 + e)
+    /// below.
+    pub fn at(&self, x: f64) -> (f64, f64, f64) {
+        let t = (x - self.onset) / self.width;
+        let e = (-t.abs()).exp();
+        let softplus = t.max(0.0) + e.ln_1p();
+        let sigma = if t >= 0.0 {
+            1.0 / (1.0 + e)
+        } else {
+            e / (1.0 + e)
+        };
+        let r = x + (self.gain - 1.0) * self.width * softplus;
+        let (first, second, third) = self.derivatives_from(sigma);
+        let schwarzian = 0.75 * (second / first).powi(2) - 0.5 * third / first;
+        (r, first, schwarzian)
     }
 
     /// r(x), bohr.
     pub fn r(&self, x: f64) -> f64 {
-        let t = (x - self.onset) / self.width;
-        // ln(1 + e^t), written to avoid overflow for large t.
-        let softplus = if t > 30.0 {
-            t + (-t).exp().ln_1p()
-        } else {
-            t.exp().ln_1p()
-        };
-        x + (self.gain - 1.0) * self.width * softplus
+        self.at(x).0
     }
 
     /// (r', r'', r''') at x.
     pub fn derivatives(&self, x: f64) -> (f64, f64, f64) {
-        let sigma = self.logistic(x);
+        self.derivatives_from(1.0 / (1.0 + (-(x - self.onset) / self.width).exp()))
+    }
+
+    /// (r', r'', r''') from the logistic sigma at x.
+    fn derivatives_from(&self, sigma: f64) -> (f64, f64, f64) {
         let k = self.gain - 1.0;
         let first = 1.0 + k * sigma;
         let second = k * sigma * (1.0 - sigma) / self.width;
@@ -53,8 +64,7 @@ impl Stretch {
 
     /// F(x) = 3/4 (r''/r')^2 - 1/2 r'''/r' (minus half the Schwarzian derivative).
     pub fn schwarzian_term(&self, x: f64) -> f64 {
-        let (d1, d2, d3) = self.derivatives(x);
-        0.75 * (d2 / d1).powi(2) - 0.5 * d3 / d1
+        self.at(x).2
     }
 
     /// The x with r(x) = r (r is increasing), by bisection.

@@ -329,6 +329,10 @@ const NUMEROV_POINTS_PER_WAVELENGTH: f64 = 10.0;
 /// A level stops after two Numerov grids when their Richardson step is below this fraction
 /// of the tolerance.
 const EARLY_EXIT: f64 = 0.1;
+/// Cooley steps on one grid stop when the correction is below this fraction of the tolerance:
+/// convergence is quadratic, so the energy kept (with the last correction applied) is far
+/// closer, and a shot this close to the level changes <r> by a negligible fraction.
+const COOLEY_FRACTION: f64 = 1e-2;
 /// Halvings of the coarsest step tried when a level misses the tolerance.
 const MAX_REFINEMENTS: usize = 4;
 
@@ -743,7 +747,10 @@ fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverEr
                 break solved;
             }
         };
-        if !job.fixed_range && ladder.base.end() < cap && box_growths < 4 {
+        // (A level the coarse count placed below the limit that converged above it is not
+        // bound and will be rejected: it has no tail to hold.)
+        let bound = !facts.top_is_limit || solved.level.energy < facts.top;
+        if !job.fixed_range && bound && ladder.base.end() < cap && box_growths < 4 {
             let needed = grid::outer_bound(
                 problem,
                 solved.level.energy,
@@ -804,6 +811,9 @@ fn tail_stretch(
 #[derive(Debug, Clone, Copy, Default)]
 struct Rung {
     energy: f64,
+    /// The leading discretisation error E_h - E predicted from the level on this grid
+    /// ([`NumerovGrid::leading_error`]).
+    leading_error: f64,
     mean_r: f64,
     mean_inverse_r2: f64,
     distortion: f64,
@@ -812,11 +822,10 @@ struct Rung {
 
 /// Level v on grids with steps h, h/2, h/4, ... over one box (`coarsest`'s range), each
 /// rung seeded by the one before. After each new rung the estimate is formed from the last
-/// rungs: three give a Richardson value (error series h^4, h^6) whose error estimate is its
-/// last step; two suffice when their one Richardson step is already far below the tolerance
-/// (the value is then that extrapolation, error O(h^6), and the estimate the step itself, an
-/// upper bound of the same kind). A step the user fixed is never refined: a level that misses
-/// the tolerance after three rungs on it is reported as not converged.
+/// rungs ([`ladder_estimate`]): three give a Richardson value whose error estimate is its last
+/// step; two suffice when their one Richardson step is already far below the tolerance. A
+/// step the user fixed is never refined: a level that misses the tolerance after three rungs
+/// on it is reported as not converged.
 struct Ladder {
     /// The box in r (before any stretch).
     base: UniformGrid,
@@ -873,15 +882,14 @@ impl Ladder {
                 stretch.as_ref().map(|s| (s, lo)),
             )?,
         };
-        // Seed: the rung before, moved by the change the error series h^4 predicts (1/16 of
-        // the last change) once two rungs are known.
+        // Seed: the rung before, moved by the change its leading error predicts (15/16 of it
+        // goes when the step halves).
         let seed = match self.rungs.as_slice() {
-            [.., a, b] => Some(b.energy + (b.energy - a.energy) / 16.0),
-            [a] => Some(a.energy),
+            [.., a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
             [] => seed,
         };
         let level = numerov
-            .solve_level(v, lo, hi, seed, 1e-3 * settings.tolerance)
+            .solve_level(v, lo, hi, seed, COOLEY_FRACTION * settings.tolerance)
             .ok_or_else(|| SolverError::Bracket {
                 v: v as u32,
                 grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
@@ -890,6 +898,7 @@ impl Ladder {
             energy: level.energy,
             ..Rung::default()
         };
+        rung.leading_error = numerov.leading_error(level.energy, &level.phi);
         (rung.mean_r, rung.mean_inverse_r2) = numerov.expectations(&level.phi);
         if settings.distortion {
             (_, rung.distortion, rung.sextic) =
@@ -928,11 +937,26 @@ struct LadderEstimate {
 
 /// The best estimate from the last rungs of a ladder (None with a single rung, or with two
 /// whose step is not yet small enough to stand alone).
+///
+/// Three rungs: the energies corrected by their leading error (E_h - L_h = E + b h^6 +
+/// c h^8 and so on) are extrapolated with factors 63 and 255; the last step is the estimate,
+/// provided the corrected values converge as h^6 does: successive differences in a ratio
+/// near 2^6 = 64 (between 48 and 85). Otherwise (stretched tails of the least-bound levels
+/// can leave part of the h^4 term) the plain energies are extrapolated as h^4, h^6
+/// ([`richardson`]). Two rungs: one plain Richardson step, when it is below EARLY_EXIT of the
+/// tolerance.
 fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
     let energies: Vec<f64> = rungs.iter().map(|r| r.energy).collect();
     let n = energies.len();
     if n >= 3 {
-        let (energy, error) = richardson([energies[n - 3], energies[n - 2], energies[n - 1]]);
+        let last = &rungs[n - 3..];
+        let corrected: Vec<f64> = last.iter().map(|r| r.energy - r.leading_error).collect();
+        let ratio = (corrected[1] - corrected[0]) / (corrected[2] - corrected[1]);
+        let (energy, error) = if (48.0..=85.0).contains(&ratio) {
+            richardson_corrected([corrected[0], corrected[1], corrected[2]])
+        } else {
+            richardson([energies[n - 3], energies[n - 2], energies[n - 1]])
+        };
         let three = LadderEstimate {
             used: 3,
             energy,
@@ -944,6 +968,15 @@ fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
         return Some(two_rung(&energies[n - 2..], tolerance).unwrap_or(three));
     }
     (n == 2).then(|| two_rung(&energies, tolerance)).flatten()
+}
+
+/// Richardson extrapolation of corrected values at steps h, h/2, h/4 for an error series in
+/// h^6, h^8: returns (extrapolated value, error estimate).
+fn richardson_corrected(values: [f64; 3]) -> (f64, f64) {
+    let first = values[1] + (values[1] - values[0]) / 63.0;
+    let second = values[2] + (values[2] - values[1]) / 63.0;
+    let best = second + (second - first) / 255.0;
+    (best, (best - second).abs())
 }
 
 /// One Richardson step over the last two rungs, when it is below EARLY_EXIT of the tolerance.

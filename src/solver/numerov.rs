@@ -24,9 +24,14 @@
 //! a Newton step on the matching defect. The converged shot is the grid's eigenvector, and the
 //! k-th eigenvector of a Jacobi matrix changes sign exactly k times (the discrete Sturm
 //! oscillation theorem), so its nodes certify v; when they do not match, the level is found
-//! again inside a bracket narrowed by Sturm counts, with Cooley steps kept inside it. The
-//! discretisation error is removed by Richardson extrapolation over steps h, h/2, h/4 (error
-//! series in h^4, h^6): the difference between the last two extrapolants is the error
+//! again inside a bracket narrowed by Sturm counts, with Cooley steps kept inside it.
+//!
+//! The discretisation error is removed in two stages. Numerov's local residual is
+//! -h^4 psi^(6)/240; first-order perturbation theory turns it into the level's leading error,
+//! computed from the level on its own grid ([`NumerovGrid::leading_error`]); subtracting it
+//! leaves an error series in h^6, h^8, which Richardson extrapolation over steps h, h/2, h/4
+//! removes (the ratio of successive differences is checked to be near 64 first; otherwise the
+//! plain energies are extrapolated as h^4, h^6). The last Richardson step is the error
 //! estimate. No N x N matrix is ever built; memory and time are O(N) per level.
 
 use super::grid::UniformGrid;
@@ -53,11 +58,10 @@ fn stretched_point(
     stretch: &super::mapping::Stretch,
     potential: &dyn Fn(f64) -> f64,
 ) -> (f64, f64, f64) {
-    let r = stretch.r(x);
-    let slope = stretch.derivatives(x).0;
+    let (r, slope, schwarzian) = stretch.at(x);
     let s = slope * slope;
     (
-        s * 2.0 * reduced_mass * potential(r) + stretch.schwarzian_term(x),
+        s * 2.0 * reduced_mass * potential(r) + schwarzian,
         2.0 * reduced_mass * s,
         r,
     )
@@ -210,13 +214,24 @@ impl NumerovGrid {
     /// <r> and <r^-2> of a normalised phi (h sum r'^2 phi^2 g(r)).
     pub fn expectations(&self, phi: &[f64]) -> (f64, f64) {
         let (mut mean_r, mut mean_inv) = (0.0, 0.0);
-        for (i, p) in phi.iter().enumerate() {
-            let r = self.radius(i);
-            let weight = p * p * self.stretch_weight(i) * self.grid.step;
-            mean_r += weight * r;
-            mean_inv += weight / (r * r);
+        let mut add = |density: f64, r: f64| {
+            mean_r += density * r;
+            mean_inv += density / (r * r);
+        };
+        match (&self.radius, &self.energy_weight) {
+            (Some(radius), Some(c)) => {
+                let inverse_two_mu = 0.5 / self.reduced_mass;
+                for ((p, r), c) in phi.iter().zip(radius).zip(c) {
+                    add(p * p * c * inverse_two_mu, *r);
+                }
+            }
+            _ => {
+                for (i, p) in phi.iter().enumerate() {
+                    add(p * p, self.grid.r(i));
+                }
+            }
         }
-        (mean_r, mean_inv)
+        (mean_r * self.grid.step, mean_inv * self.grid.step)
     }
 
     /// The wavefunction psi(r_i) = sqrt(r'_i) phi_i with its r_i.
@@ -230,6 +245,28 @@ impl NumerovGrid {
         (r, psi)
     }
 
+    /// The leading discretisation error of a level on this grid, E_h - E = -(h^4/240)
+    /// int (phi''')^2 dx / <phi|c|phi>, with int (phi''')^2 = int (Q'^2 - Q^3) phi^2 (by parts,
+    /// phi'' = Q phi): Numerov's local residual is -h^4 phi^(6)/240, and first-order
+    /// perturbation theory turns it into an energy. `phi` is normalised (h sum c phi^2 = 2 mu).
+    pub fn leading_error(&self, energy: f64, phi: &[f64]) -> f64 {
+        let n = self.grid.intervals;
+        let h = self.grid.step;
+        let two_mu = 2.0 * self.reduced_mass;
+        let q = |i: usize| {
+            self.twice_mu_v[i] - self.energy_weight.as_ref().map_or(two_mu, |c| c[i]) * energy
+        };
+        let integral: f64 = (1..n)
+            .map(|i| {
+                let (before, here, after) = (q(i - 1), q(i), q(i + 1));
+                let slope = (after - before) / (2.0 * h);
+                (slope * slope - here * here * here) * phi[i] * phi[i]
+            })
+            .sum::<f64>()
+            * h;
+        -h.powi(4) / 240.0 * integral / two_mu
+    }
+
     /// Index of the first grid point where V_eff is not finite, if any.
     pub fn first_non_finite(&self) -> Option<usize> {
         self.twice_mu_v.iter().position(|w| !w.is_finite())
@@ -238,11 +275,19 @@ impl NumerovGrid {
     /// True when 1 - h^2 Q / 12 > 0 at every point for energies at or above `energy`.
     pub fn factor_is_positive(&self, energy: f64) -> bool {
         let h2 = self.grid.step * self.grid.step;
-        let two_mu = 2.0 * self.reduced_mass;
-        (0..self.twice_mu_v.len()).all(|i| {
-            let c = self.energy_weight.as_ref().map_or(two_mu, |c| c[i]);
-            h2 * (self.twice_mu_v[i] - c * energy) / 12.0 < 1.0
-        })
+        // The largest Q at `energy` (a fold that vectorises, without early exit).
+        let largest = match &self.energy_weight {
+            None => {
+                let highest = self.twice_mu_v.iter().fold(f64::MIN, |m, w| m.max(*w));
+                highest - 2.0 * self.reduced_mass * energy
+            }
+            Some(c) => self
+                .twice_mu_v
+                .iter()
+                .zip(c)
+                .fold(f64::MIN, |m, (w, c)| m.max(w - c * energy)),
+        };
+        h2 * largest / 12.0 < 1.0
     }
 
     /// Number of discrete levels below `energy`: negative pivots of LDL^T of A(E).
@@ -627,13 +672,13 @@ fn sign_changes(values: &[f64]) -> usize {
 impl NumerovGrid {
     /// Normalise so that h sum r'^2 phi^2 = 1 and make the innermost lobe positive.
     fn normalise(&self, mut psi: Vec<f64>) -> Vec<f64> {
-        let norm = (self.grid.step
-            * psi
-                .iter()
-                .enumerate()
-                .map(|(i, p)| p * p * self.stretch_weight(i))
-                .sum::<f64>())
-        .sqrt();
+        let sum = match &self.energy_weight {
+            Some(c) => {
+                psi.iter().zip(c).map(|(p, c)| p * p * c).sum::<f64>() * 0.5 / self.reduced_mass
+            }
+            None => psi.iter().map(|p| p * p).sum::<f64>(),
+        };
+        let norm = (self.grid.step * sum).sqrt();
         let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
         let first_lobe_sign = psi
             .iter()
