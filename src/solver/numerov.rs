@@ -721,6 +721,34 @@ mod tests {
     }
 
     #[test]
+    fn leading_error_of_the_harmonic_ground_state() {
+        // V = x^2/2, mu = 1: psi_0 = pi^(-1/4) exp(-x^2/2), Q = x^2 - 1, and with the moments
+        // <x^2> = 1/2, <x^4> = 3/4, <x^6> = 15/8 (textbook) int (Q'^2 - Q^3) psi^2 = 15/8, so
+        // the leading error is -(h^4/480) 15/8 = -h^4/256 (derived here). Both the discrete
+        // level and the method must show it, up to the next order, relative O(h^2) = 0.25%
+        // at h = 0.05 (asserted to 1%).
+        let h = 0.05;
+        let grid = UniformGrid {
+            start: -10.0,
+            step: h,
+            intervals: 400,
+        };
+        let numerov = NumerovGrid::new(grid, 1.0, &|x| 0.5 * x * x);
+        let level = numerov.solve_level(0, 0.0, 1.0, Some(0.5), 1e-15).unwrap();
+        let expected = -h.powi(4) / 256.0;
+        let discrete = level.energy - 0.5;
+        assert!(
+            (discrete / expected - 1.0).abs() < 1e-2,
+            "{discrete:e} {expected:e}"
+        );
+        let predicted = numerov.leading_error(level.energy, &level.phi);
+        assert!(
+            (predicted / expected - 1.0).abs() < 1e-2,
+            "{predicted:e} {expected:e}"
+        );
+    }
+
+    #[test]
     fn richardson_removes_h4_and_h6() {
         let f = |h: f64| 1.0 + 3.0 * h.powi(4) - 2.0 * h.powi(6);
         let (best, _) = richardson([f(0.4), f(0.2), f(0.1)]);
