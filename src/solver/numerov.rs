@@ -213,24 +213,25 @@ impl NumerovGrid {
 
     /// <r> and <r^-2> of a normalised phi (h sum r'^2 phi^2 g(r)).
     pub fn expectations(&self, phi: &[f64]) -> (f64, f64) {
-        let (mut mean_r, mut mean_inv) = (0.0, 0.0);
-        let mut add = |density: f64, r: f64| {
-            mean_r += density * r;
-            mean_inv += density / (r * r);
+        // Sums of density * (r, r^-2), density = phi^2 r'^2 (phi^2 on a plain grid).
+        let sums = |points: &mut dyn Iterator<Item = (f64, f64)>| {
+            points.fold((0.0, 0.0), |(mean_r, mean_inv), (density, r)| {
+                (mean_r + density * r, mean_inv + density / (r * r))
+            })
         };
-        match (&self.radius, &self.energy_weight) {
+        let (mean_r, mean_inv) = match (&self.radius, &self.energy_weight) {
             (Some(radius), Some(c)) => {
                 let inverse_two_mu = 0.5 / self.reduced_mass;
-                for ((p, r), c) in phi.iter().zip(radius).zip(c) {
-                    add(p * p * c * inverse_two_mu, *r);
-                }
+                sums(
+                    &mut phi
+                        .iter()
+                        .zip(radius)
+                        .zip(c)
+                        .map(|((p, r), c)| (p * p * c * inverse_two_mu, *r)),
+                )
             }
-            _ => {
-                for (i, p) in phi.iter().enumerate() {
-                    add(p * p, self.grid.r(i));
-                }
-            }
-        }
+            _ => sums(&mut phi.iter().enumerate().map(|(i, p)| (p * p, self.grid.r(i)))),
+        };
         (mean_r * self.grid.step, mean_inv * self.grid.step)
     }
 
@@ -250,17 +251,28 @@ impl NumerovGrid {
     /// phi'' = Q phi): Numerov's local residual is -h^4 phi^(6)/240, and first-order
     /// perturbation theory turns it into an energy. `phi` is normalised (h sum c phi^2 = 2 mu).
     pub fn leading_error(&self, energy: f64, phi: &[f64]) -> f64 {
-        let n = self.grid.intervals;
         let h = self.grid.step;
         let two_mu = 2.0 * self.reduced_mass;
-        let q = |i: usize| {
-            self.twice_mu_v[i] - self.energy_weight.as_ref().map_or(two_mu, |c| c[i]) * energy
+        let q: Vec<f64> = match &self.energy_weight {
+            None => self
+                .twice_mu_v
+                .iter()
+                .map(|w| w - two_mu * energy)
+                .collect(),
+            Some(c) => self
+                .twice_mu_v
+                .iter()
+                .zip(c)
+                .map(|(w, c)| w - c * energy)
+                .collect(),
         };
-        let integral: f64 = (1..n)
-            .map(|i| {
-                let (before, here, after) = (q(i - 1), q(i), q(i + 1));
-                let slope = (after - before) / (2.0 * h);
-                (slope * slope - here * here * here) * phi[i] * phi[i]
+        // Q' by central differences at the interior points.
+        let integral: f64 = q
+            .windows(3)
+            .zip(&phi[1..])
+            .map(|(q, p)| {
+                let slope = (q[2] - q[0]) / (2.0 * h);
+                (slope * slope - q[1] * q[1] * q[1]) * p * p
             })
             .sum::<f64>()
             * h;
@@ -656,8 +668,20 @@ fn march<'a>(
     (previous, current, norm)
 }
 
-/// Sign changes along a vector, zeros skipped.
+/// Sign changes along a vector, zeros skipped. Without zeros inside, a change is a pair of
+/// neighbours of strictly opposite signs (a branch-free count); zeros at the ends change
+/// nothing.
 fn sign_changes(values: &[f64]) -> usize {
+    let inside = &values[1.min(values.len())..values.len().saturating_sub(1)];
+    if !inside.contains(&0.0) {
+        return values
+            .windows(2)
+            .map(|pair| {
+                let (a, b) = (pair[0], pair[1]);
+                usize::from((a < 0.0 && b > 0.0) || (a > 0.0 && b < 0.0))
+            })
+            .sum();
+    }
     let mut changes = 0;
     let mut previous = 0.0f64;
     for &value in values.iter().filter(|v| **v != 0.0) {
@@ -746,6 +770,13 @@ mod tests {
             (predicted / expected - 1.0).abs() < 1e-2,
             "{predicted:e} {expected:e}"
         );
+    }
+
+    #[test]
+    fn sign_changes_skip_zeros() {
+        assert_eq!(sign_changes(&[0.0, 1.0, -1e-300, 2.0, 0.0]), 2);
+        assert_eq!(sign_changes(&[0.0, 1.0, 0.0, -1.0, 0.0]), 1);
+        assert_eq!(sign_changes(&[0.0, -1.0, 0.0, -1.0, 0.0]), 0);
     }
 
     #[test]
