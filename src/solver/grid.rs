@@ -81,19 +81,22 @@ pub fn inner_bound(
 /// decay integral reaches the target, or `cap`.
 pub fn outer_bound(problem: &RadialProblem, energy: f64, outer_turning: f64, cap: f64) -> f64 {
     let mu = problem.reduced_mass;
+    let kappa_at = |r: f64| (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
     let mut r = outer_turning;
+    let mut kappa = kappa_at(r);
     let mut decay = 0.0;
     while decay < DECAY_TARGET && r < cap {
-        let kappa = (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
-        // Steps of a tenth of the decay length, at least 0.01 bohr, at most 5% of r.
+        // Steps of half the decay length, at least 0.01 bohr, at most 5% of r; the integral by
+        // the trapezoidal rule.
         let longest = 0.05 * r.max(1.0);
         let dr = if kappa > 0.0 {
-            (0.1 / kappa).clamp(0.01f64.min(longest), longest)
+            (0.5 / kappa).clamp(0.01f64.min(longest), longest)
         } else {
             longest
         };
-        decay += kappa * dr;
-        r += dr;
+        let next = kappa_at(r + dr);
+        decay += 0.5 * (kappa + next) * dr;
+        (r, kappa) = (r + dr, next);
     }
     r.min(cap)
 }

@@ -537,28 +537,45 @@ fn counting_box(
     let probe = facts.top - 1e-4 * depth;
     let (_, probe_outer) = turning(problem, facts, probe, cap);
     let mut end = grid::outer_bound(problem, probe, probe_outer, cap);
-    let count_at = |end: f64| -> Result<(UniformGrid, usize), SolverError> {
-        let coarse = covering(start, end, step);
-        let numerov = check_grid(problem, facts, &coarse, None)?;
-        Ok((coarse, numerov.count_below(facts.top - facts.curve_minimum)))
-    };
-    let (mut coarse, mut count) = count_at(end)?;
+    // Each wider box continues the grid before it and the lattice halves the coarse grid
+    // twice, so no point is evaluated twice.
+    let potential = |r: f64| problem.effective(r) - facts.curve_minimum;
+    let below_top = |numerov: &NumerovGrid| numerov.count_below(facts.top - facts.curve_minimum);
+    let mut coarse = covering(start, end, step);
+    let mut coarse_numerov = check_grid(problem, facts, &coarse, None)?;
+    let mut count = below_top(&coarse_numerov);
     let mut stable = !facts.top_is_limit;
     while facts.top_is_limit && end < cap {
         let doubled = (start + 2.0 * (end - start)).min(cap);
-        let (wider, wider_count) = count_at(doubled)?;
+        let wider = covering(start, doubled, step);
+        let wider_numerov = validate(
+            problem,
+            facts,
+            &wider,
+            coarse_numerov.extended(wider.intervals, &potential),
+            lowest_energy(facts),
+        )?;
+        let wider_count = below_top(&wider_numerov);
         if wider_count == count {
             stable = true;
             break;
         }
-        (coarse, count, end) = (wider, wider_count, doubled);
+        (coarse, coarse_numerov, count, end) = (wider, wider_numerov, wider_count, doubled);
     }
     // The coarse step can also push a level just below the limit above it: count again on
     // the finest step of the Richardson sequence and keep the larger count (levels that end
     // up above the limit once converged are rejected later).
-    let lattice = check_grid(problem, facts, &coarse.refined(4), None)?;
+    let lattice = validate(
+        problem,
+        facts,
+        &coarse.refined(4),
+        coarse_numerov
+            .halved(None, &potential)
+            .halved(None, &potential),
+        lowest_energy(facts),
+    )?;
     if facts.top_is_limit {
-        count = count.max(lattice.count_below(facts.top - facts.curve_minimum));
+        count = count.max(below_top(&lattice));
     }
     // A level needing more than twice this box to show would be bound by less than this.
     let undetectable_binding = if facts.top_is_limit {

@@ -164,6 +164,20 @@ impl NumerovGrid {
         }
     }
 
+    /// The same plain grid continued to `intervals` intervals (more than it has): only the new
+    /// points are evaluated.
+    pub fn extended(&self, intervals: usize, potential: &dyn Fn(f64) -> f64) -> NumerovGrid {
+        let grid = UniformGrid {
+            intervals,
+            ..self.grid
+        };
+        let mu = self.reduced_mass;
+        let mut values = self.twice_mu_v.clone();
+        values.truncate(intervals + 1);
+        values.extend((values.len()..=intervals).map(|i| 2.0 * mu * potential(grid.r(i))));
+        NumerovGrid::from_values(grid, mu, values)
+    }
+
     /// From values 2 mu V_eff already tabulated at the points of a plain grid.
     pub fn from_values(grid: UniformGrid, reduced_mass: f64, twice_mu_v: Vec<f64>) -> NumerovGrid {
         debug_assert_eq!(twice_mu_v.len(), grid.intervals + 1);
