@@ -877,11 +877,15 @@ impl Ladder {
         let lattice = &job.counting.lattice;
         // A plain rung is a subsampling of the lattice when it lies on it; otherwise each rung
         // after the first is the one before with its step halved (only new points evaluated).
-        let numerov = match (&self.stretch, &self.finest) {
-            (None, _) if on_lattice(lattice, &g).is_some() => {
-                check_grid(problem, facts, &g, Some(lattice))?
+        let on_lattice = match self.stretch {
+            None => on_lattice(lattice, &g),
+            Some(_) => None,
+        };
+        let numerov = match (on_lattice, &self.stretch, &self.finest) {
+            (Some(subsample), _, _) => {
+                validate(problem, facts, &g, subsample, lowest_energy(facts))?
             }
-            (stretch, Some((_, previous))) => {
+            (None, stretch, Some((_, previous))) => {
                 let floor = facts.curve_minimum;
                 let halved = previous.halved(stretch.as_ref(), &|r| problem.effective(r) - floor);
                 let lowest = if stretch.is_some() {
@@ -891,7 +895,7 @@ impl Ladder {
                 };
                 validate(problem, facts, &g, halved, lowest)?
             }
-            (stretch, None) => check_stretched_grid(
+            (None, stretch, None) => check_stretched_grid(
                 problem,
                 facts,
                 &g,
