@@ -787,6 +787,41 @@ mod tests {
     }
 
     #[test]
+    fn halved_and_extended_grids_equal_grids_built_whole() {
+        // Reusing the points of a coarser or shorter grid must give exactly the values a grid
+        // built from scratch has (same formula at the same points).
+        let potential = |r: f64| 0.3 * (1.0 - (-(r - 2.0)).exp()).powi(2);
+        let grid = UniformGrid {
+            start: 0.5,
+            step: 0.05,
+            intervals: 100,
+        };
+        let plain = NumerovGrid::new(grid, 900.0, &potential);
+        let whole = NumerovGrid::new(grid.refined(2), 900.0, &potential);
+        assert_eq!(plain.halved(None, &potential).twice_mu_v, whole.twice_mu_v);
+        let longer = UniformGrid {
+            intervals: 150,
+            ..grid
+        };
+        let extended = plain.extended(150, &potential);
+        assert_eq!(
+            extended.twice_mu_v,
+            NumerovGrid::new(longer, 900.0, &potential).twice_mu_v
+        );
+        let stretch = crate::solver::mapping::Stretch {
+            onset: 4.0,
+            width: 0.5,
+            gain: 8.0,
+        };
+        let stretched = NumerovGrid::stretched(grid, 900.0, &stretch, &potential);
+        let halved = stretched.halved(Some(&stretch), &potential);
+        let built = NumerovGrid::stretched(grid.refined(2), 900.0, &stretch, &potential);
+        assert_eq!(halved.twice_mu_v, built.twice_mu_v);
+        assert_eq!(halved.energy_weight, built.energy_weight);
+        assert_eq!(halved.radius, built.radius);
+    }
+
+    #[test]
     fn sign_changes_skip_zeros() {
         assert_eq!(sign_changes(&[0.0, 1.0, -1e-300, 2.0, 0.0]), 2);
         assert_eq!(sign_changes(&[0.0, 1.0, 0.0, -1.0, 0.0]), 1);
