@@ -746,6 +746,7 @@ fn open_ladder(
         rungs: Vec::new(),
         bracket,
         finest: None,
+        before_finest: None,
     };
     ladder.climb(job, v, Some(seed))?;
     Ok(ladder)
@@ -854,6 +855,8 @@ struct Ladder {
     bracket: (f64, f64),
     /// The last rung's level and grid.
     finest: Option<(numerov::GridLevel, NumerovGrid)>,
+    /// The level and grid of the rung before the last.
+    before_finest: Option<(numerov::GridLevel, NumerovGrid)>,
 }
 
 impl Ladder {
@@ -921,15 +924,11 @@ impl Ladder {
         };
         rung.leading_error = numerov.leading_error(level.energy, &level.phi);
         (rung.mean_r, rung.mean_inverse_r2) = numerov.expectations(&level.phi);
-        if settings.distortion {
-            (_, rung.distortion, rung.sextic) =
-                numerov.rotational_constants(level.energy, &level.phi);
-        }
         self.rungs.push(rung);
         // Next grid: the level moves by O(h^4); bracket tightly, widened if needed.
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         self.bracket = (level.energy - shift, level.energy + shift);
-        self.finest = Some((level, numerov));
+        self.before_finest = self.finest.replace((level, numerov));
         let Some(estimate) = ladder_estimate(&self.rungs, settings.tolerance) else {
             return Ok(None);
         };
@@ -937,6 +936,18 @@ impl Ladder {
             return Ok(None);
         }
         let (level, numerov) = self.finest.take().expect("a rung was just solved");
+        // D_v and H_v come from the two finest rungs only: solved there, once.
+        if settings.distortion {
+            let n = self.rungs.len();
+            let (before_level, before_grid) = self
+                .before_finest
+                .as_ref()
+                .expect("an estimate needs two rungs");
+            (_, self.rungs[n - 2].distortion, self.rungs[n - 2].sextic) =
+                before_grid.rotational_constants(before_level.energy, &before_level.phi);
+            (_, self.rungs[n - 1].distortion, self.rungs[n - 1].sextic) =
+                numerov.rotational_constants(level.energy, &level.phi);
+        }
         Ok(Some(finish_level(
             job,
             v,
