@@ -25,9 +25,10 @@ pub struct Stretch {
 }
 
 impl Stretch {
-    /// (r, r', F) at x with one exponential: t = (x - x_s)/w, e = exp(-|t|), softplus(t) =
-    /// max(t, 0) + ln(1 + e), and the logistic sigma(t) = 1/(1 + e) for t >= 0, e/(1 + e)
-    /// below.
+    /// (r, r', F) at x, F = 3/4 (r''/r')^2 - 1/2 r'''/r' (minus half the Schwarzian
+    /// derivative), with one exponential: t = (x - x_s)/w, e = exp(-|t|),
+    /// softplus(t) = max(t, 0) + ln(1 + e), and the logistic sigma(t) = 1/(1 + e) for t >= 0,
+    /// e/(1 + e) below.
     pub fn at(&self, x: f64) -> (f64, f64, f64) {
         let t = (x - self.onset) / self.width;
         let e = (-t.abs()).exp();
@@ -48,8 +49,9 @@ impl Stretch {
         self.at(x).0
     }
 
-    /// (r', r'', r''') at x.
-    pub fn derivatives(&self, x: f64) -> (f64, f64, f64) {
+    /// (r', r'', r''') at x (the tests check them against differences of r).
+    #[cfg(test)]
+    fn derivatives(&self, x: f64) -> (f64, f64, f64) {
         self.derivatives_from(1.0 / (1.0 + (-(x - self.onset) / self.width).exp()))
     }
 
@@ -60,11 +62,6 @@ impl Stretch {
         let second = k * sigma * (1.0 - sigma) / self.width;
         let third = k * sigma * (1.0 - sigma) * (1.0 - 2.0 * sigma) / (self.width * self.width);
         (first, second, third)
-    }
-
-    /// F(x) = 3/4 (r''/r')^2 - 1/2 r'''/r' (minus half the Schwarzian derivative).
-    pub fn schwarzian_term(&self, x: f64) -> f64 {
-        self.at(x).2
     }
 
     /// The x with r(x) = r (r is increasing), by bisection.
@@ -102,5 +99,12 @@ mod tests {
             assert!((s.x_of(s.r(x)) - x).abs() < 1e-9);
         }
         assert!((s.derivatives(40.0).0 - 20.0).abs() < 1e-6);
+        // at() gives r' and F = 3/4 (r''/r')^2 - 1/2 r'''/r' from the same derivatives.
+        for x in [3.0, 5.0, 6.5] {
+            let (r, slope, schwarzian) = s.at(x);
+            let (d1, d2, d3) = s.derivatives(x);
+            assert!((r - s.r(x)).abs() < 1e-12 && (slope - d1).abs() < 1e-12 * d1);
+            assert!((schwarzian - (0.75 * (d2 / d1).powi(2) - 0.5 * d3 / d1)).abs() < 1e-12);
+        }
     }
 }
