@@ -469,9 +469,6 @@ impl NumerovGrid {
             .map(|i| self.twice_mu_v[i] - c[i] * energy)
             .collect();
         let factor: Vec<f64> = q.iter().map(|q| 1.0 - h2 * q / 12.0).collect();
-        // <f g> = h sum (c_i / 2 mu) f_i g_i
-        let inner =
-            |f: &[f64], g: &[f64]| -> f64 { (1..n).map(|i| h * c[i] / two_mu * f[i] * g[i]).sum() };
         let b = (1..n)
             .map(|i| h * c[i] / two_mu * phi[i] * phi[i] * rotation[i])
             .sum::<f64>();
@@ -481,44 +478,52 @@ impl NumerovGrid {
         let m = (1..n)
             .max_by(|&i, &j| phi[i].abs().total_cmp(&phi[j].abs()))
             .unwrap_or(n / 2);
-        // Y from phi at point i.
+        // Y from phi at point i, and back (the inverse factors computed apart, off the
+        // recurrences' critical path).
+        let inverse_factor: Vec<f64> = factor.iter().map(|f| 1.0 / f).collect();
         let to_y = |value: f64, i: usize| factor[i] * value - h2 * source[i] / 12.0;
-        let from_y = |y: f64, i: usize| (y + h2 * source[i] / 12.0) / factor[i];
-        // Outward particular solution up to m, inward one down to m, both from zero values.
-        let mut outward = vec![0.0; n + 1];
-        let (mut y_prev, mut y_curr) = (to_y(0.0, 0), to_y(0.0, 1));
+        let from_y = |y: f64, i: usize| (y + h2 * source[i] / 12.0) * inverse_factor[i];
+        // Outward particular solution up to m, inward one down to m, both from zero values;
+        // the current value stays in a register.
+        let mut response = vec![0.0; n + 1];
+        let (mut y_prev, mut y_curr, mut current) = (to_y(0.0, 0), to_y(0.0, 1), 0.0);
         for i in 1..m {
-            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * outward[i] + source[i]);
-            outward[i + 1] = from_y(y_next, i + 1);
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * current + source[i]);
+            current = from_y(y_next, i + 1);
+            response[i + 1] = current;
             (y_prev, y_curr) = (y_curr, y_next);
         }
-        let mut inward = vec![0.0; n + 1];
-        let (mut y_prev, mut y_curr) = (to_y(0.0, n), to_y(0.0, n - 1));
+        let outward_at_m = response[m];
+        let (mut y_prev, mut y_curr, mut current) = (to_y(0.0, n), to_y(0.0, n - 1), 0.0);
         for i in (m + 1..n).rev() {
-            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * inward[i] + source[i]);
-            inward[i - 1] = from_y(y_next, i - 1);
+            let y_next = 2.0 * y_curr - y_prev + h2 * (q[i] * current + source[i]);
+            current = from_y(y_next, i - 1);
+            response[i - 1] = current;
             (y_prev, y_curr) = (y_curr, y_next);
         }
-        let shift = (outward[m] - inward[m]) / phi[m];
-        let mut response: Vec<f64> = (0..=n)
-            .map(|i| {
-                if i <= m {
-                    outward[i]
-                } else {
-                    inward[i] + shift * phi[i]
-                }
-            })
-            .collect();
-        let overlap = inner(phi, &response);
-        response
+        // Join at m by adding a multiple of phi to the inward part (response[m] now holds the
+        // inward value there).
+        let shift = (outward_at_m - response[m]) / phi[m];
+        response[m] = outward_at_m;
+        response[m + 1..]
             .iter_mut()
-            .zip(phi)
-            .for_each(|(r, p)| *r -= overlap * p);
-        let perturbation: Vec<f64> = (0..=n).map(|i| (rotation[i] - b) * phi[i]).collect();
-        let centrifugal = -inner(&perturbation, &response);
-        // Third order (Rayleigh-Schroedinger, psi1 orthogonal to psi0): E3 = <psi1| V' - B |psi1>.
-        let shifted: Vec<f64> = (0..=n).map(|i| (rotation[i] - b) * response[i]).collect();
-        (b, centrifugal, inner(&response, &shifted))
+            .zip(&phi[m + 1..])
+            .for_each(|(r, p)| *r += shift * p);
+        // psi1 = R - <phi|R> phi is orthogonal to phi. With w = (V' - B), in one pass:
+        // E2 = -<w phi|psi1> = -(<w phi|R> - <phi|R> <w phi|phi>) and
+        // E3 = <psi1|w|psi1> = <R|w|R> - 2 <phi|R> <w phi|R> + <phi|R>^2 <w phi|phi>.
+        let (mut overlap, mut coupling, mut diagonal, mut response_term) = (0.0, 0.0, 0.0, 0.0);
+        for i in 1..n {
+            let weight = h * c[i] / two_mu;
+            let perturbation = rotation[i] - b;
+            overlap += weight * phi[i] * response[i];
+            coupling += weight * perturbation * phi[i] * response[i];
+            diagonal += weight * perturbation * phi[i] * phi[i];
+            response_term += weight * perturbation * response[i] * response[i];
+        }
+        let centrifugal = -(coupling - overlap * diagonal);
+        let third = response_term - 2.0 * overlap * coupling + overlap * overlap * diagonal;
+        (b, centrifugal, third)
     }
 
     /// Solve discrete level `v`. With a `start` energy close to the level (from a coarser
