@@ -394,15 +394,13 @@ fn covering(start: f64, end: f64, step: f64) -> UniformGrid {
     }
 }
 
-/// The Numerov data of `grid`: taken from the shared fine `lattice` when `grid` is a
-/// subsampling of it (no potential evaluated again), else tabulated; then validated.
+/// The Numerov data of a plain `grid`, tabulated and validated.
 fn check_grid(
     problem: &RadialProblem,
     facts: &WellFacts,
     grid: &UniformGrid,
-    lattice: Option<&NumerovGrid>,
 ) -> Result<NumerovGrid, SolverError> {
-    check_stretched_grid(problem, facts, grid, lattice, None)
+    check_stretched_grid(problem, facts, grid, None)
 }
 
 /// The lowest energy (relative to the curve minimum) a grid must handle.
@@ -417,24 +415,20 @@ fn check_stretched_grid(
     problem: &RadialProblem,
     facts: &WellFacts,
     grid: &UniformGrid,
-    lattice: Option<&NumerovGrid>,
     stretch: Option<(&mapping::Stretch, f64)>,
 ) -> Result<NumerovGrid, SolverError> {
     let floor = facts.curve_minimum;
-    if let Some((stretch, lowest)) = stretch {
-        let numerov = NumerovGrid::stretched(*grid, problem.reduced_mass, stretch, &|r| {
-            problem.effective(r) - floor
-        });
-        return validate(problem, facts, grid, numerov, lowest);
+    let potential = |r: f64| problem.effective(r) - floor;
+    match stretch {
+        Some((stretch, lowest)) => {
+            let numerov = NumerovGrid::stretched(*grid, problem.reduced_mass, stretch, &potential);
+            validate(problem, facts, grid, numerov, lowest)
+        }
+        None => {
+            let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &potential);
+            validate(problem, facts, grid, numerov, lowest_energy(facts))
+        }
     }
-    let numerov = lattice
-        .and_then(|fine| on_lattice(fine, grid))
-        .unwrap_or_else(|| {
-            NumerovGrid::new(*grid, problem.reduced_mass, &|r| {
-                problem.effective(r) - floor
-            })
-        });
-    validate(problem, facts, grid, numerov, lowest_energy(facts))
 }
 
 /// A plain grid as a subsampling of a finer one it is aligned with, if it is.
@@ -502,7 +496,7 @@ fn counting_box(
             });
         }
         let coarse = grid_over(lo, hi, step);
-        let lattice = check_grid(problem, facts, &coarse.refined(4), None)?;
+        let lattice = check_grid(problem, facts, &coarse.refined(4))?;
         let bound_levels = lattice.count_below(facts.top - facts.curve_minimum);
         return Ok(Counting {
             coarse,
@@ -542,7 +536,7 @@ fn counting_box(
     let potential = |r: f64| problem.effective(r) - facts.curve_minimum;
     let below_top = |numerov: &NumerovGrid| numerov.count_below(facts.top - facts.curve_minimum);
     let mut coarse = covering(start, end, step);
-    let mut coarse_numerov = check_grid(problem, facts, &coarse, None)?;
+    let mut coarse_numerov = check_grid(problem, facts, &coarse)?;
     let mut count = below_top(&coarse_numerov);
     let mut stable = !facts.top_is_limit;
     while facts.top_is_limit && end < cap {
@@ -898,13 +892,9 @@ impl Ladder {
                 };
                 validate(problem, facts, &g, halved, lowest)?
             }
-            (None, stretch, None) => check_stretched_grid(
-                problem,
-                facts,
-                &g,
-                Some(lattice),
-                stretch.as_ref().map(|s| (s, lo)),
-            )?,
+            (None, stretch, None) => {
+                check_stretched_grid(problem, facts, &g, stretch.as_ref().map(|s| (s, lo)))?
+            }
         };
         // Seed: the rung before, moved by the change its leading error predicts (15/16 of it
         // goes when the step halves).

@@ -227,24 +227,17 @@ impl NumerovGrid {
 
     /// <r> and <r^-2> of a normalised phi (h sum r'^2 phi^2 g(r)).
     pub fn expectations(&self, phi: &[f64]) -> (f64, f64) {
-        // Sums of density * (r, r^-2), density = phi^2 r'^2 (phi^2 on a plain grid).
-        let sums = |points: &mut dyn Iterator<Item = (f64, f64)>| {
-            points.fold((0.0, 0.0), |(mean_r, mean_inv), (density, r)| {
-                (mean_r + density * r, mean_inv + density / (r * r))
-            })
-        };
         let (mean_r, mean_inv) = match (&self.radius, &self.energy_weight) {
             (Some(radius), Some(c)) => {
                 let inverse_two_mu = 0.5 / self.reduced_mass;
-                sums(
-                    &mut phi
-                        .iter()
+                moments(
+                    phi.iter()
                         .zip(radius)
                         .zip(c)
                         .map(|((p, r), c)| (p * p * c * inverse_two_mu, *r)),
                 )
             }
-            _ => sums(&mut phi.iter().enumerate().map(|(i, p)| (p * p, self.grid.r(i)))),
+            _ => moments(phi.iter().enumerate().map(|(i, p)| (p * p, self.grid.r(i)))),
         };
         (mean_r * self.grid.step, mean_inv * self.grid.step)
     }
@@ -648,6 +641,13 @@ impl NumerovGrid {
             energy = next;
         }
     }
+}
+
+/// Sums of density * r and density / r^2 over (density, r) pairs, in registers.
+fn moments(points: impl Iterator<Item = (f64, f64)>) -> (f64, f64) {
+    points.fold((0.0, 0.0), |(mean_r, mean_inv), (density, r)| {
+        (mean_r + density * r, mean_inv + density / (r * r))
+    })
 }
 
 /// Start of a shot: psi is set to this at the first point inside each end.
