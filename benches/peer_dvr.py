@@ -35,6 +35,20 @@ def dvr_levels(de, a, re, mu, lo, hi, n):
     hmat = t / (2 * mu * h * h) + np.diag(de * (1 - np.exp(-a * (r - re))) ** 2)
     return eigh(hmat, eigvals_only=True, subset_by_value=(-np.inf, de))
 
+def smallest_grid(good, start, limit, resolution):
+    """The smallest N (to `resolution` points) with good(N): doubling from `start`, then
+    bisection; None when no N up to `limit` is good."""
+    n = start
+    while not good(n):
+        n *= 2
+        if n > limit:
+            return None
+    lo_n, hi_n = n // 2, n
+    while hi_n - lo_n > resolution:
+        mid = (lo_n + hi_n) // 2
+        lo_n, hi_n = (lo_n, mid) if good(mid) else (mid, hi_n)
+    return hi_n
+
 def case(name, we, wexe, re_a, mu_u, lo, hi, tol_cm):
     de, a, re, mu = morse(we, wexe, re_a, mu_u)
     lam = np.sqrt(2 * mu * de) / a
@@ -44,18 +58,11 @@ def case(name, we, wexe, re_a, mu_u, lo, hi, tol_cm):
     def good(n):
         e = dvr_levels(de, a, re, mu, lo, hi, n) * HARTREE_CM
         return len(e) >= nlev and np.max(np.abs(e[:nlev] - exact)) < tol_cm
-    # Smallest grid (to 50 points) that reaches the accuracy: double, then bisect.
-    n = 200
-    while not good(n):
-        n *= 2
-        if n > 16000:
-            print(f"{name}: no grid up to 16000 points reaches {tol_cm} cm-1", flush=True)
-            return
-    lo_n, hi_n = n // 2, n
-    while hi_n - lo_n > 50:
-        mid = (lo_n + hi_n) // 2
-        lo_n, hi_n = (lo_n, mid) if good(mid) else (mid, hi_n)
-    n = hi_n
+    # Smallest grid (to 50 points) that reaches the accuracy.
+    n = smallest_grid(good, 200, 16000, 50)
+    if n is None:
+        print(f"{name}: no grid up to 16000 points reaches {tol_cm} cm-1", flush=True)
+        return
     e = dvr_levels(de, a, re, mu, lo, hi, n) * HARTREE_CM
     times = []
     for _ in range(5):
@@ -109,17 +116,10 @@ def p3(curve="curves/h2_born_oppenheimer.toml", lo=0.2, hi=30.0, tol_cm=1e-5):
                 return np.inf
             worst = max(worst, np.max(np.abs(got[j] - np.array(reference[j]))))
         return worst
-    n = 1000
-    while deviation(n, 0) >= tol_cm:
-        n *= 2
-        if n > 8000:
-            print(f"P3: no grid up to 8000 points on {lo}-{hi} bohr reaches {tol_cm} cm-1", flush=True)
-            return
-    lo_n, hi_n = n // 2, n
-    while hi_n - lo_n > 100:
-        mid = (lo_n + hi_n) // 2
-        lo_n, hi_n = (lo_n, mid) if deviation(mid, 0) < tol_cm else (mid, hi_n)
-    n = hi_n
+    n = smallest_grid(lambda n: deviation(n, 0) < tol_cm, 1000, 8000, 100)
+    if n is None:
+        print(f"P3: no grid up to 8000 points on {lo}-{hi} bohr reaches {tol_cm} cm-1", flush=True)
+        return
     worst = deviation(n, jmax + 1)
     mu, limit, v = sampled(curve, lo, hi, n)
     times = []
