@@ -99,7 +99,8 @@ mod tests {
             assert!((s.x_of(s.r(x)) - x).abs() < 1e-9);
         }
         assert!((s.derivatives(40.0).0 - 20.0).abs() < 1e-6);
-        // at() gives r' and F = 3/4 (r''/r')^2 - 1/2 r'''/r' from the same derivatives.
+        // at() gives r' and F = 3/4 (r''/r')^2 - 1/2 r'''/r' from the same derivatives; the
+        // two logistic evaluations differ by rounding only (1e-12 bounds that; common practice).
         for x in [3.0, 5.0, 6.5] {
             let (r, slope, schwarzian) = s.at(x);
             let (d1, d2, d3) = s.derivatives(x);
