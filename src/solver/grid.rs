@@ -77,15 +77,33 @@ pub fn inner_bound(
     (r, r - dr <= floor)
 }
 
+/// Decay integral a box already sized for a level must hold past the level's outer turning
+/// point, once the level is known (its box was sized from a guess, with [`DECAY_TARGET`]).
+/// e^-25 ~ 1e-11 in the amplitude: the wall then moves the level by a relative e^-50 ~ 1e-22
+/// (the shift goes as the squared amplitude at the wall), so a box this short of the target
+/// needs no regrowing.
+pub const DECAY_HELD: f64 = 25.0;
+
 /// Where a level at `energy` needs the grid to end: past its outer turning point until the
-/// decay integral reaches the target, or `cap`.
+/// decay integral reaches [`DECAY_TARGET`], or `cap`.
 pub fn outer_bound(problem: &RadialProblem, energy: f64, outer_turning: f64, cap: f64) -> f64 {
+    outer_bound_for(problem, energy, outer_turning, cap, DECAY_TARGET)
+}
+
+/// Where the decay integral past `outer_turning` reaches `decay`, or `cap`.
+pub fn outer_bound_for(
+    problem: &RadialProblem,
+    energy: f64,
+    outer_turning: f64,
+    cap: f64,
+    decay_target: f64,
+) -> f64 {
     let mu = problem.reduced_mass;
     let kappa_at = |r: f64| (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
     let mut r = outer_turning;
     let mut kappa = kappa_at(r);
     let mut decay = 0.0;
-    while decay < DECAY_TARGET && r < cap {
+    while decay < decay_target && r < cap {
         // Steps of half the decay length, at least 0.01 bohr, at most 5% of r; the integral by
         // the trapezoidal rule.
         let longest = 0.05 * r.max(1.0);
@@ -127,5 +145,27 @@ mod tests {
         let turning = 1.4 - (1.0 - (0.0227f64 / 0.18).sqrt()).ln();
         let end = outer_bound(&problem, 0.0227, turning, 176.0);
         assert!(end < 5.0, "{end}");
+    }
+
+    #[test]
+    fn held_bound_falls_short_of_the_target_by_the_missing_decay() {
+        // Far past the well kappa is nearly its asymptotic value sqrt(2 mu (D - E)), so the
+        // decay integral grows linearly (WKB, textbook): the bound for DECAY_HELD ends
+        // (DECAY_TARGET - DECAY_HELD) / kappa before the bound for DECAY_TARGET. 5% allows
+        // for kappa still above its asymptote there and for the integration steps of half a
+        // decay length (our own allowance).
+        let (depth, energy) = (0.18, 0.17);
+        let morse = Morse::new(depth, 1.0, 1.4);
+        let problem = RadialProblem::new(&morse, 918.0, 0);
+        let turning = 1.4 - (1.0 - (energy / depth).sqrt()).ln();
+        let target = outer_bound(&problem, energy, turning, 500.0);
+        let held = outer_bound_for(&problem, energy, turning, 500.0, DECAY_HELD);
+        let kappa = (2.0 * 918.0 * (depth - energy)).sqrt();
+        let expected = (DECAY_TARGET - DECAY_HELD) / kappa;
+        assert!(
+            ((target - held) / expected - 1.0).abs() < 0.05,
+            "{} {expected}",
+            target - held
+        );
     }
 }

@@ -763,13 +763,9 @@ fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverEr
         // bound and will be rejected: it has no tail to hold.)
         let bound = !facts.top_is_limit || solved.level.energy < facts.top;
         if !job.fixed_range && bound && ladder.base.end() < cap && box_growths < 4 {
-            let needed = grid::outer_bound(
-                problem,
-                solved.level.energy,
-                solved.level.outer_turning_point,
-                cap,
-            );
-            if needed > ladder.base.end() * 1.0001 {
+            let (energy, outer) = (solved.level.energy, solved.level.outer_turning_point);
+            let held = grid::outer_bound_for(problem, energy, outer, cap, grid::DECAY_HELD);
+            if held > ladder.base.end() {
                 // The first rung of the new box differs from the level by about what the
                 // first rung of this one did: bracket it by a few times that (the grid's
                 // validity is checked down to the bracket's foot).
