@@ -157,7 +157,7 @@ pub struct Level {
     pub converged: bool,
     pub inner_turning_point: f64,
     pub outer_turning_point: f64,
-    /// <r>, bohr.
+    /// `<r>`, bohr.
     pub mean_r: f64,
     /// <r^-2>, bohr^-2.
     pub mean_inverse_r2: f64,
@@ -747,8 +747,9 @@ fn open_ladder(
 }
 
 /// Climb a level's ladder until its estimate meets the tolerance. The box must also hold the
-/// converged level's tail (it was sized from a seed, inside the counting box): if it does not,
-/// the ladder starts again in a box sized by the converged energy, up to the outer cap.
+/// converged level's tail (it was sized from a seed, inside the counting box), to the decay
+/// [`grid::DECAY_HELD`]: if it does not, the ladder starts again in a box sized by the
+/// converged energy, up to the outer cap.
 fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverError> {
     let (problem, facts) = (job.problem, job.facts);
     let floor = facts.curve_minimum;

@@ -225,7 +225,7 @@ impl NumerovGrid {
             .map_or(1.0, |c| c[i] / (2.0 * self.reduced_mass))
     }
 
-    /// <r> and <r^-2> of a normalised phi (h sum r'^2 phi^2 g(r)).
+    /// `<r>` and `<r^-2>` of a normalised phi (h sum r'^2 phi^2 g(r)).
     pub fn expectations(&self, phi: &[f64]) -> (f64, f64) {
         let (mean_r, mean_inv) = match (&self.radius, &self.energy_weight) {
             (Some(radius), Some(c)) => {
