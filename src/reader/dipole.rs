@@ -13,7 +13,7 @@
 //! itself: a header `r_<length unit>,dipole_<dipole unit>` and rows of numbers.
 
 use super::points::parse_function_points;
-use super::{choice, line_of_toml_error, InputError, Origin};
+use super::{choice, parse_toml, InputError, Origin};
 use crate::curve::DipoleFunction;
 use crate::units::{self, Dimension};
 use std::path::Path;
@@ -44,11 +44,7 @@ pub fn parse_dipole_toml(
     name: &str,
     base_dir: &Path,
 ) -> Result<DipoleFunction, InputError> {
-    let document: toml::Table = toml::from_str(text).map_err(|e| InputError {
-        source_name: name.to_string(),
-        line: line_of_toml_error(text, &e),
-        message: format!("not valid TOML: {}", e.message()),
-    })?;
+    let document = parse_toml(text, name)?;
     let origin = Origin {
         name: name.to_string(),
         text: Some(text),

@@ -629,10 +629,15 @@ pub struct PairOverride {
     pub charge: Option<i32>,
 }
 
-fn line_of_toml_error(text: &str, error: &toml::de::Error) -> Option<usize> {
-    error
-        .span()
-        .map(|span| text[..span.start.min(text.len())].lines().count().max(1))
+/// The TOML document of a file's text, or an error naming the file and the line at fault.
+fn parse_toml(text: &str, name: &str) -> Result<toml::Table, InputError> {
+    toml::from_str(text).map_err(|e: toml::de::Error| InputError {
+        source_name: name.to_string(),
+        line: e
+            .span()
+            .map(|span| text[..span.start.min(text.len())].lines().count().max(1)),
+        message: format!("not valid TOML: {}", e.message()),
+    })
 }
 
 /// Read a curve file (TOML) from disk.
@@ -651,11 +656,7 @@ pub fn parse_curve_file(
     base_dir: &Path,
     overrides: &PairOverride,
 ) -> Result<CurveSetup, InputError> {
-    let document: toml::Table = toml::from_str(text).map_err(|e| InputError {
-        source_name: name.to_string(),
-        line: line_of_toml_error(text, &e),
-        message: format!("not valid TOML: {}", e.message()),
-    })?;
+    let document = parse_toml(text, name)?;
     let top = Origin {
         name: name.to_string(),
         text: Some(text),
