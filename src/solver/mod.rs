@@ -456,6 +456,18 @@ fn validate(
             r: numerov.radius(i),
         });
     }
+    check_factor(problem, facts, grid, numerov, lowest)
+}
+
+/// Refuse a grid whose Numerov factor 1 - h^2 Q/12 is not positive at energies from `lowest`
+/// (relative to the curve minimum) up.
+fn check_factor(
+    problem: &RadialProblem,
+    facts: &WellFacts,
+    grid: &UniformGrid,
+    numerov: NumerovGrid,
+    lowest: f64,
+) -> Result<NumerovGrid, SolverError> {
     if !numerov.factor_is_positive(lowest) {
         let wall = problem.effective(grid.start) - facts.floor;
         return Err(SolverError::StepTooCoarse {
@@ -624,14 +636,16 @@ fn solve_numerov(
     // below it (they share the step, so their discretisation error varies smoothly with v);
     // then the rest of every ladder in parallel.
     let mut ladders: Vec<Ladder> = Vec::with_capacity(count);
+    let mut first_rungs: Vec<f64> = Vec::with_capacity(count);
     for v in 0..count {
-        let below: Vec<f64> = ladders.iter().map(|l| l.rungs[0].energy).collect();
-        let (seed, lo) = first_rung_seed(facts, &below);
+        let (seed, lo) = first_rung_seed(facts, &first_rungs);
         let hi = facts.top - floor;
         // A seed is a guess: its box ends in the counting box (it may grow once the level is
         // known, see solve_one).
         let cap = counting.coarse.end();
-        ladders.push(open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?);
+        let ladder = open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?;
+        first_rungs.push(ladder.rungs[0].energy);
+        ladders.push(ladder);
     }
     let solved: Vec<Result<Solved, SolverError>> = ladders
         .into_par_iter()
@@ -876,8 +890,9 @@ impl Ladder {
             Some(_) => None,
         };
         let numerov = match (on_lattice, &self.stretch, &self.finest) {
+            // (The lattice's values were all found finite when it was built.)
             (Some(subsample), _, _) => {
-                validate(problem, facts, &g, subsample, lowest_energy(facts))?
+                check_factor(problem, facts, &g, subsample, lowest_energy(facts))?
             }
             (None, stretch, Some((_, previous))) => {
                 let floor = facts.curve_minimum;

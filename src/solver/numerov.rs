@@ -361,9 +361,9 @@ impl NumerovGrid {
         count
     }
 
-    /// Shoot at `energy`: returns psi (unnormalised, matched at the outer turning point) and
-    /// Cooley's energy correction.
-    fn shoot(&self, energy: f64) -> (Vec<f64>, f64) {
+    /// Shoot at `energy`: psi (unnormalised, matched at the outer turning point), Cooley's
+    /// energy correction and the norm.
+    fn shoot(&self, energy: f64) -> Shot {
         let two_mu = 2.0 * self.reduced_mass;
         match &self.energy_weight {
             None => self.shoot_with(energy, |_| two_mu),
@@ -371,7 +371,7 @@ impl NumerovGrid {
         }
     }
 
-    fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> (Vec<f64>, f64) {
+    fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> Shot {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
         let w = &self.twice_mu_v;
@@ -434,7 +434,11 @@ impl NumerovGrid {
         let norm = norm_out + scale * scale * norm_in + c(m) * phi[m] * phi[m];
         // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
         let correction = phi[m] * defect / (h2 * norm);
-        (phi, correction)
+        Shot {
+            phi,
+            correction,
+            norm,
+        }
     }
 
     /// The centrifugal distortion constant D = -E2 of a level by first-order perturbation
@@ -545,7 +549,8 @@ impl NumerovGrid {
     /// Unsafeguarded Cooley steps from `energy`, confirmed by the Sturm count.
     fn polish(&self, v: usize, mut energy: f64, tolerance: f64) -> Option<GridLevel> {
         for iterations in 1..=8 {
-            let (psi, correction) = self.shoot(energy);
+            let shot = self.shoot(energy);
+            let correction = shot.correction;
             if !correction.is_finite() {
                 return None;
             }
@@ -556,12 +561,12 @@ impl NumerovGrid {
                 // (the discrete Sturm oscillation theorem), so its nodes confirm v with no
                 // extra pass over the grid; only a disagreement is checked by Sturm counts.
                 let margin = (1e3 * correction.abs()).max(1e-11 * (1.0 + energy.abs()));
-                let confirmed = sign_changes(&psi) == v
+                let confirmed = sign_changes(&shot.phi) == v
                     || (self.count_below(energy - margin) == v
                         && self.count_below(energy + margin) == v + 1);
                 return confirmed.then(|| GridLevel {
                     energy,
-                    phi: self.normalise(psi),
+                    phi: self.normalise(shot),
                     iterations,
                 });
             }
@@ -615,7 +620,8 @@ impl NumerovGrid {
         let mut iterations = 0;
         loop {
             iterations += 1;
-            let (psi, correction) = self.shoot(energy);
+            let shot = self.shoot(energy);
+            let correction = shot.correction;
             let threshold = Self::threshold(tolerance, energy);
             let converged = correction.abs() < threshold || hi - lo < threshold;
             if converged || iterations > 100 {
@@ -625,7 +631,7 @@ impl NumerovGrid {
                     } else {
                         energy
                     },
-                    phi: self.normalise(psi),
+                    phi: self.normalise(shot),
                     iterations,
                 });
             }
@@ -648,6 +654,14 @@ fn moments(points: impl Iterator<Item = (f64, f64)>) -> (f64, f64) {
     points.fold((0.0, 0.0), |(mean_r, mean_inv), (density, r)| {
         (mean_r + density * r, mean_inv + density / (r * r))
     })
+}
+
+/// A shot at one energy: psi at the grid points (zero at both ends, not normalised), Cooley's
+/// correction to the energy, and sum_i c_i psi_i^2.
+struct Shot {
+    phi: Vec<f64>,
+    correction: f64,
+    norm: f64,
 }
 
 /// Start of a shot: psi is set to this at the first point inside each end.
@@ -713,15 +727,11 @@ fn sign_changes(values: &[f64]) -> usize {
 }
 
 impl NumerovGrid {
-    /// Normalise so that h sum r'^2 phi^2 = 1 and make the innermost lobe positive.
-    fn normalise(&self, mut psi: Vec<f64>) -> Vec<f64> {
-        let sum = match &self.energy_weight {
-            Some(c) => {
-                psi.iter().zip(c).map(|(p, c)| p * p * c).sum::<f64>() * 0.5 / self.reduced_mass
-            }
-            None => psi.iter().map(|p| p * p).sum::<f64>(),
-        };
-        let norm = (self.grid.step * sum).sqrt();
+    /// A shot's psi normalised so that h sum r'^2 phi^2 = 1 (from the shot's own
+    /// sum c phi^2, c = 2 mu r'^2), positive on its innermost lobe.
+    fn normalise(&self, shot: Shot) -> Vec<f64> {
+        let mut psi = shot.phi;
+        let norm = (self.grid.step * shot.norm / (2.0 * self.reduced_mass)).sqrt();
         let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
         let first_lobe_sign = psi
             .iter()
