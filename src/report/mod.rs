@@ -55,6 +55,9 @@ pub enum Format {
     Json,
 }
 
+/// A number as people read it in a table: `decimals` places but at most ten significant
+/// figures, exponent form (7 figures) from 1e9 and (4 figures) below 1e-3; CSV and JSON keep
+/// every digit (our own display rule).
 fn people_cell(cell: &Cell, decimals: usize) -> String {
     match cell {
         Cell::Number(x) if x.is_finite() => {
@@ -241,6 +244,8 @@ mod tests {
 
     #[test]
     fn people_see_at_most_ten_significant_figures() {
+        // The expected strings follow our own display rule (see people_cell), not a source:
+        // at most ten significant figures, exponent form (7 figures) from 1e9 on.
         assert_eq!(
             people_cell(&Cell::Number(254796.74771234), 8),
             "254796.7477"
