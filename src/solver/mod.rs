@@ -908,10 +908,12 @@ impl Ladder {
                 check_stretched_grid(problem, facts, &g, stretch.as_ref().map(|s| (s, lo)))?
             }
         };
-        // Seed: the rung before, moved by the change its leading error predicts (15/16 of it
-        // goes when the step halves).
+        // Seed: from the two rungs before, the next rung's energy to O(h^8)
+        // ([`next_rung_energy`]); after the first, the first moved by the change its leading
+        // error predicts (15/16 of it goes when the step halves), to O(h^6).
         let seed = match self.rungs.as_slice() {
-            [.., a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
+            [.., a, b] => Some(next_rung_energy(a, b)),
+            [a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
             [] => seed,
         };
         let level = numerov
@@ -959,6 +961,21 @@ impl Ladder {
             numerov,
         )))
     }
+}
+
+/// The energy a level will have on the rung after `coarse` and `fine` (steps h, h/2; the next
+/// is h/4), to O(h^8). The energies go as E_h = E + a h^4 + b h^6 + O(h^8) and their leading
+/// errors as L_h = a h^4 + l h^6 + O(h^8) (even powers: the scheme is symmetric), so the four
+/// values fix E, A = a h^4, B = b h^6 and l h^6:
+///
+/// ```text
+///   A = (64 L_{h/2} - L_h) / 3,   B = (64/63) (E_h - E_{h/2} - 15 A / 16),
+///   E_{h/4} = E_{h/2} - 15 A / 256 - 63 B / 4096.
+/// ```
+fn next_rung_energy(coarse: &Rung, fine: &Rung) -> f64 {
+    let leading = (64.0 * fine.leading_error - coarse.leading_error) / 3.0;
+    let next_order = 64.0 / 63.0 * (coarse.energy - fine.energy - 15.0 / 16.0 * leading);
+    fine.energy - 15.0 / 256.0 * leading - 63.0 / 4096.0 * next_order
 }
 
 /// The Richardson value of a ladder and which rungs made it.
