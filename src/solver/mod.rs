@@ -30,6 +30,7 @@ use crate::units::from_wavenumber;
 use grid::UniformGrid;
 use numerov::{richardson, NumerovGrid};
 use rayon::prelude::*;
+use std::sync::OnceLock;
 
 /// The radial problem: a curve, a reduced mass (m_e) and the rotational quantum numbers.
 #[derive(Debug, Clone, Copy)]
@@ -634,30 +635,36 @@ fn solve_numerov(
     };
     // Each level's first rung, in order of v, seeded by extrapolating the first-rung energies
     // below it (they share the step, so their discretisation error varies smoothly with v);
-    // then the rest of every ladder in parallel.
-    let mut ladders: Vec<Ladder> = Vec::with_capacity(count);
-    let mut first_rungs: Vec<f64> = Vec::with_capacity(count);
-    for v in 0..count {
-        let (seed, lo) = first_rung_seed(facts, &first_rungs);
-        let hi = facts.top - floor;
-        // A seed is a guess: its box ends in the counting box (it may grow once the level is
-        // known, see solve_one).
-        let cap = counting.coarse.end();
-        let ladder = open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?;
-        first_rungs.push(ladder.rungs[0].energy);
-        ladders.push(ladder);
-    }
-    let solved: Vec<Result<Solved, SolverError>> = ladders
-        .into_par_iter()
-        .enumerate()
-        .map(|(v, ladder)| solve_one(&job, v, ladder))
-        .collect();
+    // the rest of each ladder is handed to the thread pool as soon as its first rung is known,
+    // so the other threads climb while this one opens the next.
+    let solved: Vec<OnceLock<Result<Solved, SolverError>>> =
+        (0..count).map(|_| OnceLock::new()).collect();
+    rayon::scope(|scope| -> Result<(), SolverError> {
+        let mut first_rungs: Vec<f64> = Vec::with_capacity(count);
+        for (v, slot) in solved.iter().enumerate() {
+            let (seed, lo) = first_rung_seed(facts, &first_rungs);
+            let hi = facts.top - floor;
+            // A seed is a guess: its box ends in the counting box (it may grow once the level
+            // is known, see solve_one).
+            let cap = counting.coarse.end();
+            let ladder = open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?;
+            first_rungs.push(ladder.rungs[0].energy);
+            let job = &job;
+            scope.spawn(move |_| {
+                // (Each slot is set once, here.)
+                let _ = slot.set(solve_one(job, v, ladder));
+            });
+        }
+        Ok(())
+    })?;
     let mut levels = Vec::with_capacity(count);
     let mut wavefunctions = Vec::new();
     let mut finest_grid = counting.coarse;
     let mut audit = counting.audit.clone();
-    for result in solved {
-        let s = result?;
+    for slot in solved {
+        let s = slot
+            .into_inner()
+            .expect("every opened ladder was climbed")?;
         // The coarse count can hold a level just above the limit (coarse Numerov lowers
         // energies); converged, it is not bound.
         if facts.top_is_limit && s.level.energy >= facts.top {
