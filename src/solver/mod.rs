@@ -1156,3 +1156,36 @@ pub fn solve_manifold_with_progress(
         first += batch;
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn next_rung_energy_is_exact_for_series_ending_at_h6() {
+        // E_h = E + a h^4 + b h^6 and L_h = a h^4 + l h^6 (the series next_rung_energy
+        // assumes, cut after h^6): the prediction for h/4 is exact to rounding. With h^8 terms
+        // added, its error must fall as h^8 (by 2^8 = 256 per halving; 10% allowance for the
+        // h^10 remainder, ours).
+        let (e, a, b, l) = (0.3, 2.0, -5.0, 1.5);
+        let rung = |h: f64, c: f64, m: f64| Rung {
+            energy: e + a * h.powi(4) + b * h.powi(6) + c * h.powi(8) + 7.0 * h.powi(10),
+            leading_error: a * h.powi(4) + l * h.powi(6) + m * h.powi(8),
+            ..Rung::default()
+        };
+        let cut = |h: f64| Rung {
+            energy: e + a * h.powi(4) + b * h.powi(6),
+            leading_error: a * h.powi(4) + l * h.powi(6),
+            ..Rung::default()
+        };
+        let h = 0.2;
+        let predicted = next_rung_energy(&cut(h), &cut(h / 2.0));
+        assert!((predicted - cut(h / 4.0).energy).abs() < 1e-15);
+        let miss = |h: f64| {
+            let predicted = next_rung_energy(&rung(h, 3.0, -4.0), &rung(h / 2.0, 3.0, -4.0));
+            (predicted - rung(h / 4.0, 3.0, -4.0).energy).abs()
+        };
+        let ratio = miss(h) / miss(h / 2.0);
+        assert!((ratio / 256.0 - 1.0).abs() < 0.1, "{ratio}");
+    }
+}
