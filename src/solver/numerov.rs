@@ -14,8 +14,8 @@
 //! (Sylvester's law of inertia) is exactly the number of discrete levels below E. That count
 //! costs O(N) and never misses or doubles a level. The solver (see the parent module) seeds
 //! each level from the ones below it and converges it by Cooley's correction (J.W. Cooley,
-//! Math. Comp. 15, 363 (1961)): shoot outward and inward, match at the outer turning point,
-//! and apply
+//! Math. Comp. 15, 363 (1961)): shoot outward and inward (the two marches interleaved, as
+//! they are independent), match inside the classically allowed region, and apply
 //!
 //! ```text
 //!   dE = psi_m [a_m Y_m - Y_{m-1} - Y_{m+1}] / (2 mu h^2 sum_i psi_i^2),
@@ -343,8 +343,8 @@ impl NumerovGrid {
         count
     }
 
-    /// Shoot at `energy`: psi (unnormalised, matched at the outer turning point), Cooley's
-    /// energy correction and the norm.
+    /// Shoot at `energy`: psi (unnormalised, outward and inward solutions matched inside the
+    /// classically allowed region), Cooley's energy correction and the norm.
     fn shoot(&self, energy: f64) -> Shot {
         let two_mu = 2.0 * self.reduced_mass;
         match &self.energy_weight {
@@ -353,66 +353,123 @@ impl NumerovGrid {
         }
     }
 
+    /// The outward march (from Y_0 = 0, Y_1 = TINY) and the inward one (from Y_n = 0,
+    /// Y_{n-1} = TINY) meet in a window of 2 WINDOW + 1 points around the middle of the grid
+    /// when that lies inside the classically allowed region (Q < 0), else at its outermost
+    /// point. Both marches only grow or oscillate there (each starts in a forbidden region
+    /// and runs towards the well), and up to the window they run interleaved: the two
+    /// recurrences are independent, so the processor overlaps them (one alone waits on its
+    /// own multiply and subtract at every point). The matching point m is the window's point
+    /// of largest |Y| from outside (away from a node, where Cooley's formula loses its
+    /// footing); at a root of the defect the shot is the grid's eigenvector wherever m lies.
     fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> Shot {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
         let w = &self.twice_mu_v;
-        // Matching point: the outermost point inside the classically allowed region (Q < 0).
-        let m = (1..n)
+        let allowed = |i: usize| w[i] < c(i) * energy;
+        let outer = (1..n)
             .rev()
-            .find(|&i| w[i] < c(i) * energy)
+            .find(|&i| allowed(i))
             .unwrap_or(n / 2)
             .clamp(2.min(n - 1), (n - 2).max(1));
+        let inner = (1..outer).find(|&i| allowed(i)).unwrap_or(outer);
+        let (lo, hi) = if inner + 2 * WINDOW < outer {
+            let centre = (n / 2).clamp(inner + WINDOW + 1, outer - WINDOW);
+            (centre - WINDOW, centre + WINDOW)
+        } else {
+            (outer, outer)
+        };
         let mut phi = vec![0.0; n + 1];
-        // Outward, i = 1 .. m - 1, from Y_0 = 0, Y_1 = TINY: ends with (Y_{m-1}, Y_m).
-        let (mut previous, mut current, mut norm_out) = (0.0, TINY, 0.0);
-        let mut i = 1;
-        while i < m {
-            let end = (i + CHUNK).min(m);
-            let points = (i..end).zip(w[i..end].iter().zip(&mut phi[i..end]));
-            (previous, current, norm_out) =
-                march(points, energy, h2, &c, previous, current, norm_out);
-            if current.abs() > HUGE {
-                phi[..end].iter_mut().for_each(|v| *v /= HUGE);
-                (previous, current, norm_out) =
-                    (previous / HUGE, current / HUGE, norm_out / (HUGE * HUGE));
-            }
-            i = end;
-        }
-        let (outward_before, outward_at_m) = (previous, current);
-        // Inward, i = n - 1 down to m + 1, from Y_n = 0, Y_{n-1} = TINY: ends with
-        // (Y_{m+1}, Y_m).
-        let (mut previous, mut current, mut norm_in) = (0.0, TINY, 0.0);
-        let mut i = n - 1;
-        while i > m {
-            let end = i.saturating_sub(CHUNK).max(m);
-            let points = (end + 1..=i).rev().zip(
-                w[end + 1..=i]
+        let (left, right) = phi.split_at_mut(hi + 1);
+        // right[k] is phi_{hi + 1 + k}. Outward points i = 1 .. lo - 1 (ending with
+        // (Y_{lo-1}, Y_lo)), inward points j = n - 1 down to hi + 1 (ending with
+        // (Y_{hi+1}, Y_hi)), interleaved while both have points left.
+        let mut outward = March::start();
+        let mut inward = March::start();
+        let (mut i, mut j) = (1, n - 1);
+        while i < lo && j > hi {
+            let run = CHUNK.min(lo - i).min(j - hi);
+            let out_points = (i..i + run).zip(w[i..i + run].iter().zip(&mut left[i..i + run]));
+            let in_points = (j + 1 - run..=j).rev().zip(
+                w[j + 1 - run..=j]
                     .iter()
                     .rev()
-                    .zip(phi[end + 1..=i].iter_mut().rev()),
+                    .zip(right[j - run - hi..j - hi].iter_mut().rev()),
             );
-            (previous, current, norm_in) =
-                march(points, energy, h2, &c, previous, current, norm_in);
-            if current.abs() > HUGE {
-                phi[end + 1..].iter_mut().for_each(|v| *v /= HUGE);
-                (previous, current, norm_in) =
-                    (previous / HUGE, current / HUGE, norm_in / (HUGE * HUGE));
-            }
-            i = end;
+            march_pair(
+                out_points,
+                in_points,
+                energy,
+                h2,
+                &c,
+                &mut outward,
+                &mut inward,
+            );
+            (i, j) = (i + run, j - run);
+            outward.keep_in_range(&mut left[..i]);
+            inward.keep_in_range(&mut right[j - hi..]);
         }
+        while i < lo {
+            let run = CHUNK.min(lo - i);
+            let points = (i..i + run).zip(w[i..i + run].iter().zip(&mut left[i..i + run]));
+            march(points, energy, h2, &c, &mut outward);
+            i += run;
+            outward.keep_in_range(&mut left[..i]);
+        }
+        while j > hi {
+            let run = CHUNK.min(j - hi);
+            let points = (j + 1 - run..=j).rev().zip(
+                w[j + 1 - run..=j]
+                    .iter()
+                    .rev()
+                    .zip(right[j - run - hi..j - hi].iter_mut().rev()),
+            );
+            march(points, energy, h2, &c, &mut inward);
+            j -= run;
+            inward.keep_in_range(&mut right[j - hi..]);
+        }
+        // Through the window: outward over lo .. hi - 1 (y_out[k] = Y_{lo-1+k},
+        // phi_out[k] = phi_{lo+k}), inward over hi down to lo + 1 (y_in[k] = Y_{hi+1-k},
+        // phi_in[k] = phi_{hi-k}).
+        let width = hi - lo;
+        let (mut y_out, mut phi_out) = ([0.0; 2 * WINDOW + 2], [0.0; 2 * WINDOW]);
+        let (mut y_in, mut phi_in) = ([0.0; 2 * WINDOW + 2], [0.0; 2 * WINDOW]);
+        (y_out[0], y_out[1]) = (outward.previous, outward.current);
+        (y_in[0], y_in[1]) = (inward.previous, inward.current);
+        for k in 0..width {
+            let (i, j) = (lo + k, hi - k);
+            (phi_out[k], y_out[k + 2]) =
+                numerov_point(w[i], c(i), energy, h2, y_out[k], y_out[k + 1]);
+            (phi_in[k], y_in[k + 2]) = numerov_point(w[j], c(j), energy, h2, y_in[k], y_in[k + 1]);
+        }
+        let m = (lo..=hi)
+            .max_by(|&a, &b| y_out[a - lo + 1].abs().total_cmp(&y_out[b - lo + 1].abs()))
+            .unwrap_or(lo);
+        let (out_before, out_at_m) = (y_out[m - lo], y_out[m - lo + 1]);
+        let (in_at_m, in_after) = (y_in[hi + 1 - m], y_in[hi - m]);
         // Join the inward solution to the outward one at m.
-        let scale = if current != 0.0 {
-            outward_at_m / current
+        let scale = if in_at_m != 0.0 {
+            out_at_m / in_at_m
         } else {
             1.0
         };
+        let mut norm_out = outward.norm;
+        for (k, i) in (lo..m).enumerate() {
+            phi[i] = phi_out[k];
+            norm_out += c(i) * phi[i] * phi[i];
+        }
+        let mut norm_in = inward.norm;
+        for i in m + 1..=hi {
+            let value = phi_in[hi - i];
+            norm_in += c(i) * value * value;
+            phi[i] = value;
+        }
         phi[m + 1..n].iter_mut().for_each(|v| *v *= scale);
         let q = w[m] - c(m) * energy;
         let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
         let a = 2.0 + h2 * q * inverse_factor;
-        let defect = a * outward_at_m - outward_before - scale * previous;
-        phi[m] = outward_at_m * inverse_factor;
+        let defect = a * out_at_m - out_before - scale * in_after;
+        phi[m] = out_at_m * inverse_factor;
         let norm = norm_out + scale * scale * norm_in + c(m) * phi[m] * phi[m];
         // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
         let correction = phi[m] * defect / (h2 * norm);
@@ -681,34 +738,108 @@ const TINY: f64 = 1e-30;
 /// h^2 Q / 12 below 1/2), so 15^32 HUGE stays far from overflow.
 const HUGE: f64 = 1e200;
 const CHUNK: usize = 32;
+/// Half the width of the window in which a shot's matching point is chosen, points. With at
+/// most 160 points per local wavelength on the rungs used, 8 points either side of a node
+/// still reach sin(2 pi 8 / 160) ~ 0.3 of the local amplitude.
+const WINDOW: usize = 8;
 
-/// Numerov's recurrence in Y = f psi over a run of points (i, w_i, slot), from
-/// (Y_{i-1}, Y_i) = (previous, current) in the direction of the run: at each point
-/// Q = w_i - c_i E, f = 1 - h^2 Q / 12, the slot receives phi_i = Y_i / f, the norm gains
-/// c_i phi_i^2, and Y_next = (2 + h^2 Q / f) Y_i - Y_previous. Returns the last two Y and
-/// the norm. Free of branches so the running values stay in registers; the division is off
-/// the recurrence's critical path.
+/// One march's running values: (Y_{i-1}, Y_i) at the next point i and the norm so far.
+struct March {
+    previous: f64,
+    current: f64,
+    norm: f64,
+}
+
+impl March {
+    /// Y = 0 at the grid's end, TINY at the first point inside.
+    fn start() -> March {
+        March {
+            previous: 0.0,
+            current: TINY,
+            norm: 0.0,
+        }
+    }
+
+    /// Rescale by HUGE once |Y| has grown past it, with the `written` values so far.
+    fn keep_in_range(&mut self, written: &mut [f64]) {
+        if self.current.abs() > HUGE {
+            written.iter_mut().for_each(|v| *v /= HUGE);
+            self.previous /= HUGE;
+            self.current /= HUGE;
+            self.norm /= HUGE * HUGE;
+        }
+    }
+}
+
+/// Numerov's recurrence in Y = f psi at one point from (Y_{i-1}, Y_i) = (previous, current):
+/// with Q = w_i - c_i E and f = 1 - h^2 Q / 12, returns phi_i = Y_i / f and
+/// Y_next = (2 + h^2 Q / f) Y_i - Y_previous. The division is off the recurrence's critical
+/// path.
+#[inline(always)]
+fn numerov_point(w: f64, c: f64, energy: f64, h2: f64, previous: f64, current: f64) -> (f64, f64) {
+    let q = w - c * energy;
+    let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
+    let phi = current * inverse_factor;
+    (phi, (2.0 + h2 * q * inverse_factor) * current - previous)
+}
+
+/// [`numerov_point`] over a run of points (i, w_i, slot) in the direction of the run: each
+/// slot receives phi_i and the norm gains c_i phi_i^2. Free of branches so the running values
+/// stay in registers.
 #[inline(always)]
 fn march<'a>(
     points: impl Iterator<Item = (usize, (&'a f64, &'a mut f64))>,
     energy: f64,
     h2: f64,
     weight: &impl Fn(usize) -> f64,
-    mut previous: f64,
-    mut current: f64,
-    mut norm: f64,
-) -> (f64, f64, f64) {
+    state: &mut March,
+) {
+    let (mut previous, mut current, mut norm) = (state.previous, state.current, state.norm);
     for (i, (w, slot)) in points {
         let c = weight(i);
-        let q = w - c * energy;
-        let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
-        let phi = current * inverse_factor;
+        let (phi, next) = numerov_point(*w, c, energy, h2, previous, current);
         *slot = phi;
         norm += c * phi * phi;
-        let next = (2.0 + h2 * q * inverse_factor) * current - previous;
         (previous, current) = (current, next);
     }
-    (previous, current, norm)
+    (state.previous, state.current, state.norm) = (previous, current, norm);
+}
+
+/// Two independent runs of [`march`] of the same length, a point of each in turn.
+#[inline(always)]
+fn march_pair<'a, 'b>(
+    first: impl Iterator<Item = (usize, (&'a f64, &'a mut f64))>,
+    second: impl Iterator<Item = (usize, (&'b f64, &'b mut f64))>,
+    energy: f64,
+    h2: f64,
+    weight: &impl Fn(usize) -> f64,
+    first_state: &mut March,
+    second_state: &mut March,
+) {
+    let (mut a_previous, mut a_current, mut a_norm) =
+        (first_state.previous, first_state.current, first_state.norm);
+    let (mut b_previous, mut b_current, mut b_norm) = (
+        second_state.previous,
+        second_state.current,
+        second_state.norm,
+    );
+    for ((i, (wa, slot_a)), (j, (wb, slot_b))) in first.zip(second) {
+        let (ca, cb) = (weight(i), weight(j));
+        let (phi_a, next_a) = numerov_point(*wa, ca, energy, h2, a_previous, a_current);
+        let (phi_b, next_b) = numerov_point(*wb, cb, energy, h2, b_previous, b_current);
+        *slot_a = phi_a;
+        *slot_b = phi_b;
+        a_norm += ca * phi_a * phi_a;
+        b_norm += cb * phi_b * phi_b;
+        (a_previous, a_current) = (a_current, next_a);
+        (b_previous, b_current) = (b_current, next_b);
+    }
+    (first_state.previous, first_state.current, first_state.norm) = (a_previous, a_current, a_norm);
+    (
+        second_state.previous,
+        second_state.current,
+        second_state.norm,
+    ) = (b_previous, b_current, b_norm);
 }
 
 /// Sign changes along a vector, zeros skipped. Without zeros inside, a change is a pair of
@@ -851,6 +982,37 @@ mod tests {
         assert_eq!(sign_changes(&[0.0, 1.0, -1e-300, 2.0, 0.0]), 2);
         assert_eq!(sign_changes(&[0.0, 1.0, 0.0, -1.0, 0.0]), 1);
         assert_eq!(sign_changes(&[0.0, -1.0, 0.0, -1.0, 0.0]), 0);
+    }
+
+    #[test]
+    fn matched_shot_is_the_grid_eigenvector_wherever_it_meets() {
+        // V = r^2/2 around r = 10 (mu = 1) on 0 .. 20: the middle of the grid lies inside the
+        // classically allowed region of v = 6, so the marches meet in the window around it.
+        // The converged level must be the grid's discrete eigenvalue (Sturm counts v below it
+        // and v + 1 above, within 1e-10), and its phi must satisfy Numerov's three-point
+        // relation -Y_{i-1} + a_i Y_i - Y_{i+1} = 0 at every interior point, the join
+        // included (residual below 1e-9 of max |Y|: our bound, far above rounding and far
+        // below the O(1) a join at the wrong scale leaves).
+        let grid = UniformGrid {
+            start: 0.0,
+            step: 0.02,
+            intervals: 1000,
+        };
+        let numerov = NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0));
+        let level = numerov.solve_level(6, 6.0, 7.0, Some(6.5), 1e-14).unwrap();
+        assert_eq!(numerov.count_below(level.energy - 1e-10), 6);
+        assert_eq!(numerov.count_below(level.energy + 1e-10), 7);
+        let h2 = grid.step * grid.step;
+        let q = |i: usize| numerov.twice_mu_v[i] - 2.0 * level.energy;
+        let y: Vec<f64> = (0..=1000)
+            .map(|i| (1.0 - h2 * q(i) / 12.0) * level.phi[i])
+            .collect();
+        let largest = y.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        for i in 1..1000 {
+            let a = 2.0 + h2 * q(i) / (1.0 - h2 * q(i) / 12.0);
+            let residual = -y[i - 1] + a * y[i] - y[i + 1];
+            assert!(residual.abs() < 1e-9 * largest, "point {i}: {residual:e}");
+        }
     }
 
     #[test]
