@@ -344,12 +344,13 @@ impl NumerovGrid {
     }
 
     /// Shoot at `energy`: psi (unnormalised, outward and inward solutions matched inside the
-    /// classically allowed region), Cooley's energy correction and the norm.
-    fn shoot(&self, energy: f64) -> Shot {
+    /// classically allowed region), Cooley's energy correction and the norm. psi is written
+    /// over `buffer` (a previous shot's, or empty), every value of it.
+    fn shoot(&self, energy: f64, buffer: Vec<f64>) -> Shot {
         let two_mu = 2.0 * self.reduced_mass;
         match &self.energy_weight {
-            None => self.shoot_with(energy, |_| two_mu),
-            Some(c) => self.shoot_with(energy, |i| c[i]),
+            None => self.shoot_with(energy, |_| two_mu, buffer),
+            Some(c) => self.shoot_with(energy, |i| c[i], buffer),
         }
     }
 
@@ -362,7 +363,7 @@ impl NumerovGrid {
     /// own multiply and subtract at every point). The matching point m is the window's point
     /// of largest |Y| from outside (away from a node, where Cooley's formula loses its
     /// footing); at a root of the defect the shot is the grid's eigenvector wherever m lies.
-    fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64) -> Shot {
+    fn shoot_with(&self, energy: f64, c: impl Fn(usize) -> f64, buffer: Vec<f64>) -> Shot {
         let n = self.grid.intervals;
         let h2 = self.grid.step * self.grid.step;
         let w = &self.twice_mu_v;
@@ -379,7 +380,10 @@ impl NumerovGrid {
         } else {
             (outer, outer)
         };
-        let mut phi = vec![0.0; n + 1];
+        // The marches and the window write every point but the two ends.
+        let mut phi = buffer;
+        phi.resize(n + 1, 0.0);
+        (phi[0], phi[n]) = (0.0, 0.0);
         let (left, right) = phi.split_at_mut(hi + 1);
         // right[k] is phi_{hi + 1 + k}. Outward points i = 1 .. lo - 1 (ending with
         // (Y_{lo-1}, Y_lo)), inward points j = n - 1 down to hi + 1 (ending with
@@ -587,8 +591,9 @@ impl NumerovGrid {
 
     /// Unsafeguarded Cooley steps from `energy`, confirmed by the Sturm count.
     fn polish(&self, v: usize, mut energy: f64, tolerance: f64) -> Option<GridLevel> {
+        let mut buffer = Vec::new();
         for iterations in 1..=8 {
-            let shot = self.shoot(energy);
+            let shot = self.shoot(energy, buffer);
             let correction = shot.correction;
             if !correction.is_finite() {
                 return None;
@@ -609,6 +614,7 @@ impl NumerovGrid {
                     iterations,
                 });
             }
+            buffer = shot.phi;
         }
         None
     }
@@ -657,9 +663,10 @@ impl NumerovGrid {
         }
         let mut energy = 0.5 * (lo + hi);
         let mut iterations = 0;
+        let mut buffer = Vec::new();
         loop {
             iterations += 1;
-            let shot = self.shoot(energy);
+            let shot = self.shoot(energy, buffer);
             let correction = shot.correction;
             let threshold = Self::threshold(tolerance, energy);
             let converged = correction.abs() < threshold || hi - lo < threshold;
@@ -684,6 +691,7 @@ impl NumerovGrid {
                 hi = next;
             }
             energy = next;
+            buffer = shot.phi;
         }
     }
 }
