@@ -260,10 +260,14 @@ impl NumerovGrid {
     pub fn leading_error(&self, energy: f64, phi: &[f64]) -> f64 {
         let h = self.grid.step;
         let two_mu = 2.0 * self.reduced_mass;
-        let w = &self.twice_mu_v;
+        // (Slices of one length, so the indexing below needs no bounds checks.)
+        let w = &self.twice_mu_v[..phi.len()];
         let sum = match &self.energy_weight {
             None => residual_sum(|i| w[i] - two_mu * energy, phi, h),
-            Some(c) => residual_sum(|i| w[i] - c[i] * energy, phi, h),
+            Some(c) => {
+                let c = &c[..phi.len()];
+                residual_sum(|i| w[i] - c[i] * energy, phi, h)
+            }
         };
         -h.powi(4) / 240.0 * sum * h / two_mu
     }
@@ -468,7 +472,6 @@ impl NumerovGrid {
             norm_in += c(i) * value * value;
             phi[i] = value;
         }
-        phi[m + 1..n].iter_mut().for_each(|v| *v *= scale);
         let q = w[m] - c(m) * energy;
         let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
         let a = 2.0 + h2 * q * inverse_factor;
@@ -479,6 +482,8 @@ impl NumerovGrid {
         let correction = phi[m] * defect / (h2 * norm);
         Shot {
             phi,
+            matching_point: m,
+            inward_scale: scale,
             correction,
             norm,
         }
@@ -605,12 +610,13 @@ impl NumerovGrid {
                 // (the discrete Sturm oscillation theorem), so its nodes confirm v with no
                 // extra pass over the grid; only a disagreement is checked by Sturm counts.
                 let margin = (1e3 * correction.abs()).max(1e-11 * (1.0 + energy.abs()));
-                let confirmed = sign_changes(&shot.phi) == v
+                let phi = self.normalise(shot);
+                let confirmed = sign_changes(&phi) == v
                     || (self.count_below(energy - margin) == v
                         && self.count_below(energy + margin) == v + 1);
-                return confirmed.then(|| GridLevel {
+                return confirmed.then_some(GridLevel {
                     energy,
-                    phi: self.normalise(shot),
+                    phi,
                     iterations,
                 });
             }
@@ -731,10 +737,14 @@ fn four_lane_sum(n: usize, term: impl Fn(usize) -> f64) -> f64 {
     (lanes[0] + lanes[1]) + (lanes[2] + lanes[3]) + tail
 }
 
-/// A shot at one energy: psi at the grid points (zero at both ends, not normalised), Cooley's
-/// correction to the energy, and sum_i c_i psi_i^2.
+/// A shot at one energy: psi at the grid points (zero at both ends, not normalised; the
+/// inward part, past the matching point, still to be multiplied by `inward_scale`), Cooley's
+/// correction to the energy, and sum_i c_i psi_i^2 of the joined psi. Only an accepted shot
+/// is joined (by [`NumerovGrid::normalise`]).
 struct Shot {
     phi: Vec<f64>,
+    matching_point: usize,
+    inward_scale: f64,
     correction: f64,
     norm: f64,
 }
@@ -876,18 +886,25 @@ fn sign_changes(values: &[f64]) -> usize {
 }
 
 impl NumerovGrid {
-    /// A shot's psi normalised so that h sum r'^2 phi^2 = 1 (from the shot's own
-    /// sum c phi^2, c = 2 mu r'^2), positive on its innermost lobe.
+    /// A shot's psi joined (its inward part times the shot's scale) and normalised so that
+    /// h sum r'^2 phi^2 = 1 (from the shot's own sum c phi^2, c = 2 mu r'^2), positive on its
+    /// innermost lobe, in one pass.
     fn normalise(&self, shot: Shot) -> Vec<f64> {
         let mut psi = shot.phi;
+        let (outward, inward) = psi.split_at_mut(shot.matching_point + 1);
         let norm = (self.grid.step * shot.norm / (2.0 * self.reduced_mass)).sqrt();
-        let peak = psi.iter().fold(0.0f64, |m, p| m.max(p.abs()));
-        let first_lobe_sign = psi
+        let largest = |part: &[f64]| part.iter().fold(0.0f64, |m, p| m.max(p.abs()));
+        let join = shot.inward_scale;
+        let peak = largest(outward).max(join.abs() * largest(inward));
+        let first_lobe_sign = outward
             .iter()
+            .copied()
+            .chain(inward.iter().map(|p| join * p))
             .find(|p| p.abs() > 1e-3 * peak)
             .map_or(1.0, |p| p.signum());
         let scale = first_lobe_sign / norm;
-        psi.iter_mut().for_each(|p| *p *= scale);
+        outward.iter_mut().for_each(|p| *p *= scale);
+        inward.iter_mut().for_each(|p| *p *= scale * join);
         psi
     }
 }
