@@ -922,15 +922,20 @@ pub fn richardson(values: [f64; 3]) -> (f64, f64) {
 mod tests {
     use super::*;
 
-    #[test]
-    fn harmonic_count_and_level() {
-        // V = r^2/2 around r = 10 (mu = 1): levels v + 1/2 (textbook).
+    /// V = r^2/2 around r = 10 (mu = 1) on 0 .. 20, step 0.02.
+    fn harmonic_grid() -> NumerovGrid {
         let grid = UniformGrid {
             start: 0.0,
             step: 0.02,
             intervals: 1000,
         };
-        let numerov = NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0));
+        NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0))
+    }
+
+    #[test]
+    fn harmonic_count_and_level() {
+        // V = r^2/2 around r = 10 (mu = 1): levels v + 1/2 (textbook).
+        let numerov = harmonic_grid();
         assert_eq!(numerov.count_below(3.0), 3);
         assert_eq!(numerov.count_below(3.4), 3);
         assert_eq!(numerov.count_below(3.6), 4);
@@ -1018,16 +1023,11 @@ mod tests {
         // relation -Y_{i-1} + a_i Y_i - Y_{i+1} = 0 at every interior point, the join
         // included (residual below 1e-9 of max |Y|: our bound, far above rounding and far
         // below the O(1) a join at the wrong scale leaves).
-        let grid = UniformGrid {
-            start: 0.0,
-            step: 0.02,
-            intervals: 1000,
-        };
-        let numerov = NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0));
+        let numerov = harmonic_grid();
         let level = numerov.solve_level(6, 6.0, 7.0, Some(6.5), 1e-14).unwrap();
         assert_eq!(numerov.count_below(level.energy - 1e-10), 6);
         assert_eq!(numerov.count_below(level.energy + 1e-10), 7);
-        let h2 = grid.step * grid.step;
+        let h2 = numerov.grid.step * numerov.grid.step;
         let q = |i: usize| numerov.twice_mu_v[i] - 2.0 * level.energy;
         let y: Vec<f64> = (0..=1000)
             .map(|i| (1.0 - h2 * q(i) / 12.0) * level.phi[i])
