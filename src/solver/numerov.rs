@@ -360,8 +360,8 @@ impl NumerovGrid {
 
     /// The outward march (from Y_0 = 0, Y_1 = TINY) and the inward one (from Y_n = 0,
     /// Y_{n-1} = TINY) meet in a window of 2 WINDOW + 1 points around the middle of the grid
-    /// when that lies inside the classically allowed region (Q < 0), else at its outermost
-    /// point. Both marches only grow or oscillate there (each starts in a forbidden region
+    /// when that lies inside the outermost classically allowed stretch (Q < 0), else at its
+    /// outermost point. Both marches only grow or oscillate there (each starts in a forbidden region
     /// and runs towards the well), and up to the window they run interleaved: the two
     /// recurrences are independent, so the processor overlaps them (one alone waits on its
     /// own multiply and subtract at every point). The matching point m is the window's point
@@ -378,11 +378,17 @@ impl NumerovGrid {
             .unwrap_or(n / 2)
             .clamp(2.min(n - 1), (n - 2).max(1));
         let inner = (1..outer).find(|&i| allowed(i)).unwrap_or(outer);
-        let (lo, hi) = if inner + 2 * WINDOW < outer {
-            let centre = (n / 2).clamp(inner + WINDOW + 1, outer - WINDOW);
-            (centre - WINDOW, centre + WINDOW)
-        } else {
-            (outer, outer)
+        // The window must lie in the same allowed stretch as `outer`, so that the inward march
+        // crosses no barrier (through one it would run against the decaying solution, as it
+        // would in the outer tail were it started the other way); a count without early exit.
+        let crossings =
+            |from: usize| -> usize { (from..=outer).map(|i| usize::from(!allowed(i))).sum() };
+        let centre = (inner + 2 * WINDOW < outer)
+            .then(|| (n / 2).clamp(inner + WINDOW + 1, outer - WINDOW))
+            .filter(|centre| crossings(centre - WINDOW) == 0);
+        let (lo, hi) = match centre {
+            Some(centre) => (centre - WINDOW, centre + WINDOW),
+            None => (outer, outer),
         };
         // The marches and the window write every point but the two ends.
         let mut phi = buffer;
@@ -1038,6 +1044,32 @@ mod tests {
             let residual = -y[i - 1] + a * y[i] - y[i + 1];
             assert!(residual.abs() < 1e-9 * largest, "point {i}: {residual:e}");
         }
+    }
+
+    #[test]
+    fn shots_do_not_meet_under_a_barrier() {
+        // A tilted double well on 0 .. 20, V = 0.2 (r - 6)^2 (r - 14)^2 - 0.1 (r - 10) (mu = 1;
+        // our own test curve): the middle of the grid, r = 10, lies under a barrier about 51
+        // high, and level 0 (near 4.6 with the shift of 2.5) sits in the outer, deeper well,
+        // while the inner well is allowed at its energy too. From the outer well to the
+        // barrier's middle the wavefunction falls by about e^-25 (int kappa dr, computed
+        // apart), so an inward march across it would amplify rounding by e^25: the marches
+        // must meet in the outer well, and the level must be the grid's discrete eigenvalue
+        // (Sturm counts 0 below and 1 above within 1e-10).
+        let grid = UniformGrid {
+            start: 0.0,
+            step: 0.01,
+            intervals: 2000,
+        };
+        let potential = |r: f64| 0.2 * (r - 6.0).powi(2) * (r - 14.0).powi(2) - 0.1 * (r - 10.0);
+        let numerov = NumerovGrid::new(grid, 1.0, &(|r| potential(r) + 2.5));
+        let level = numerov.solve_level(0, 0.0, 5.0, Some(2.0), 1e-14).unwrap();
+        assert_eq!(numerov.count_below(level.energy - 1e-10), 0);
+        assert_eq!(numerov.count_below(level.energy + 1e-10), 1);
+        let peak = (0..=2000)
+            .max_by(|&a, &b| level.phi[a].abs().total_cmp(&level.phi[b].abs()))
+            .unwrap();
+        assert!(grid.r(peak) > 12.0, "peak at r = {}", grid.r(peak));
     }
 
     #[test]
