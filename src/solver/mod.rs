@@ -423,11 +423,11 @@ fn check_stretched_grid(
     match stretch {
         Some((stretch, lowest)) => {
             let numerov = NumerovGrid::stretched(*grid, problem.reduced_mass, stretch, &potential);
-            validate(problem, facts, grid, numerov, lowest)
+            check_factor(problem, facts, grid, finite(numerov)?, lowest)
         }
         None => {
             let numerov = NumerovGrid::new(*grid, problem.reduced_mass, &potential);
-            validate(problem, facts, grid, numerov, lowest_energy(facts))
+            check_factor(problem, facts, grid, finite(numerov)?, lowest_energy(facts))
         }
     }
 }
@@ -443,21 +443,14 @@ fn on_lattice(lattice: &NumerovGrid, grid: &UniformGrid) -> Option<NumerovGrid> 
         .flatten()
 }
 
-/// Refuse a grid where V_eff is not finite or the Numerov factor 1 - h^2 Q/12 is not positive
-/// at energies from `lowest` (relative to the curve minimum) up.
-fn validate(
-    problem: &RadialProblem,
-    facts: &WellFacts,
-    grid: &UniformGrid,
-    numerov: NumerovGrid,
-    lowest: f64,
-) -> Result<NumerovGrid, SolverError> {
-    if let Some(i) = numerov.first_non_finite() {
-        return Err(SolverError::NotFinite {
+/// Refuse a grid where V_eff is not finite.
+fn finite(numerov: NumerovGrid) -> Result<NumerovGrid, SolverError> {
+    match numerov.first_non_finite() {
+        Some(i) => Err(SolverError::NotFinite {
             r: numerov.radius(i),
-        });
+        }),
+        None => Ok(numerov),
     }
-    check_factor(problem, facts, grid, numerov, lowest)
 }
 
 /// Refuse a grid whose Numerov factor 1 - h^2 Q/12 is not positive at energies from `lowest`
@@ -555,11 +548,11 @@ fn counting_box(
     while facts.top_is_limit && end < cap {
         let doubled = (start + 2.0 * (end - start)).min(cap);
         let wider = covering(start, doubled, step);
-        let wider_numerov = validate(
+        let wider_numerov = check_factor(
             problem,
             facts,
             &wider,
-            coarse_numerov.extended(wider.intervals, &potential),
+            finite(coarse_numerov.extended(wider.intervals, &potential))?,
             lowest_energy(facts),
         )?;
         let wider_count = below_top(&wider_numerov);
@@ -572,13 +565,15 @@ fn counting_box(
     // The coarse step can also push a level just below the limit above it: count again on
     // the finest step of the Richardson sequence and keep the larger count (levels that end
     // up above the limit once converged are rejected later).
-    let lattice = validate(
+    let lattice = check_factor(
         problem,
         facts,
         &coarse.refined(4),
-        coarse_numerov
-            .halved(None, &potential)
-            .halved(None, &potential),
+        finite(
+            coarse_numerov
+                .halved(None, &potential)
+                .halved(None, &potential),
+        )?,
         lowest_energy(facts),
     )?;
     if facts.top_is_limit {
@@ -909,7 +904,7 @@ impl Ladder {
                 } else {
                     lowest_energy(facts)
                 };
-                validate(problem, facts, &g, halved, lowest)?
+                check_factor(problem, facts, &g, finite(halved)?, lowest)?
             }
             (None, stretch, None) => {
                 check_stretched_grid(problem, facts, &g, stretch.as_ref().map(|s| (s, lo)))?
