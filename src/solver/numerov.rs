@@ -361,8 +361,8 @@ impl NumerovGrid {
     /// The outward march (from Y_0 = 0, Y_1 = TINY) and the inward one (from Y_n = 0,
     /// Y_{n-1} = TINY) meet in a window of 2 WINDOW + 1 points around the middle of the grid
     /// when that lies inside the outermost classically allowed stretch (Q < 0), else at its
-    /// outermost point. Both marches only grow or oscillate there (each starts in a forbidden region
-    /// and runs towards the well), and up to the window they run interleaved: the two
+    /// outermost point. Both marches only grow or oscillate there (each starts in a forbidden
+    /// region and runs towards the well), and up to the window they run interleaved: the two
     /// recurrences are independent, so the processor overlaps them (one alone waits on its
     /// own multiply and subtract at every point). The matching point m is the window's point
     /// of largest |Y| from outside (away from a node, where Cooley's formula loses its
@@ -403,16 +403,13 @@ impl NumerovGrid {
         let (mut i, mut j) = (1, n - 1);
         while i < lo && j > hi {
             let run = CHUNK.min(lo - i).min(j - hi);
-            let out_points = (i..i + run).zip(w[i..i + run].iter().zip(&mut left[i..i + run]));
-            let in_points = (j + 1 - run..=j).rev().zip(
-                w[j + 1 - run..=j]
-                    .iter()
-                    .rev()
-                    .zip(right[j - run - hi..j - hi].iter_mut().rev()),
-            );
             march_pair(
-                out_points,
-                in_points,
+                forward(i, &w[i..i + run], &mut left[i..i + run]),
+                backward(
+                    j + 1 - run,
+                    &w[j + 1 - run..=j],
+                    &mut right[j - run - hi..j - hi],
+                ),
                 energy,
                 h2,
                 &c,
@@ -425,18 +422,17 @@ impl NumerovGrid {
         }
         while i < lo {
             let run = CHUNK.min(lo - i);
-            let points = (i..i + run).zip(w[i..i + run].iter().zip(&mut left[i..i + run]));
+            let points = forward(i, &w[i..i + run], &mut left[i..i + run]);
             march(points, energy, h2, &c, &mut outward);
             i += run;
             outward.keep_in_range(&mut left[..i]);
         }
         while j > hi {
             let run = CHUNK.min(j - hi);
-            let points = (j + 1 - run..=j).rev().zip(
-                w[j + 1 - run..=j]
-                    .iter()
-                    .rev()
-                    .zip(right[j - run - hi..j - hi].iter_mut().rev()),
+            let points = backward(
+                j + 1 - run,
+                &w[j + 1 - run..=j],
+                &mut right[j - run - hi..j - hi],
             );
             march(points, energy, h2, &c, &mut inward);
             j -= run;
@@ -805,6 +801,26 @@ fn numerov_point(w: f64, c: f64, energy: f64, h2: f64, previous: f64, current: f
     let inverse_factor = 1.0 / (1.0 - h2 / 12.0 * q);
     let phi = current * inverse_factor;
     (phi, (2.0 + h2 * q * inverse_factor) * current - previous)
+}
+
+/// The points of a run (global index, w_i, slot) from `start` upward.
+fn forward<'a>(
+    start: usize,
+    w: &'a [f64],
+    slots: &'a mut [f64],
+) -> impl Iterator<Item = (usize, (&'a f64, &'a mut f64))> {
+    (start..).zip(w.iter().zip(slots))
+}
+
+/// The same points taken from the last down to `start`.
+fn backward<'a>(
+    start: usize,
+    w: &'a [f64],
+    slots: &'a mut [f64],
+) -> impl Iterator<Item = (usize, (&'a f64, &'a mut f64))> {
+    (start..start + w.len())
+        .rev()
+        .zip(w.iter().rev().zip(slots.iter_mut().rev()))
 }
 
 /// [`numerov_point`] over a run of points (i, w_i, slot) in the direction of the run: each
