@@ -1041,7 +1041,8 @@ mod tests {
         // V = r^2/2 around r = 10 (mu = 1) on 0 .. 20: the middle of the grid lies inside the
         // classically allowed region of v = 6, so the marches meet in the window around it.
         // The converged level must be the grid's discrete eigenvalue (Sturm counts v below it
-        // and v + 1 above, within 1e-10), and its phi must satisfy Numerov's three-point
+        // and v + 1 above, within 1e-10: our margin, far above the 1e-14 the Cooley steps are
+        // run to and far below the spacing of 1), and its phi must satisfy Numerov's three-point
         // relation -Y_{i-1} + a_i Y_i - Y_{i+1} = 0 at every interior point, the join
         // included (residual below 1e-9 of max |Y|: our bound, far above rounding and far
         // below the O(1) a join at the wrong scale leaves).
@@ -1071,7 +1072,8 @@ mod tests {
         // barrier's middle the wavefunction falls by about e^-25 (int kappa dr, computed
         // apart), so an inward march across it would amplify rounding by e^25: the marches
         // must meet in the outer well, and the level must be the grid's discrete eigenvalue
-        // (Sturm counts 0 below and 1 above within 1e-10).
+        // (Sturm counts 0 below and 1 above within 1e-10, our margin as above) with its peak
+        // in the outer well (r > 12: the barrier's middle is at 10, the well's at 14).
         let grid = UniformGrid {
             start: 0.0,
             step: 0.01,
