@@ -18,10 +18,15 @@
 //! they are independent), match inside the classically allowed region, and apply
 //!
 //! ```text
-//!   dE = psi_m [a_m Y_m - Y_{m-1} - Y_{m+1}] / (2 mu h^2 sum_i psi_i^2),
+//!   dE = Y_m [a_m Y_m - Y_{m-1} - Y_{m+1}] / (2 mu h^2 sum_i psi_i^2),
 //! ```
 //!
-//! a Newton step on the matching defect. The converged shot is the grid's eigenvector, and the
+//! a Newton step on the matching defect. It is the Rayleigh-quotient step of the pencil A(E):
+//! the shot Y satisfies every row of A(E) Y = 0 but row m, so Y^T A Y = Y_m defect, and
+//! Y^T A' Y = -2 mu h^2 sum psi^2 (a_i' = -2 mu h^2 / (1 - h^2 Q_i / 12)^2); the error after a
+//! step is therefore second order. (With psi_m = Y_m / (1 - h^2 Q_m / 12) in front, as the
+//! correction is often written, the step is off by h^2 Q_m / 12 of itself and converges only
+//! linearly, by that factor per shot.) The converged shot is the grid's eigenvector, and the
 //! k-th eigenvector of a Jacobi matrix changes sign exactly k times (the discrete Sturm
 //! oscillation theorem), so its nodes certify v; when they do not match, the level is found
 //! again inside a bracket narrowed by Sturm counts, with Cooley steps kept inside it.
@@ -480,8 +485,8 @@ impl NumerovGrid {
         let defect = a * out_at_m - out_before - scale * in_after;
         phi[m] = out_at_m * inverse_factor;
         let norm = norm_out + scale * scale * norm_in + c(m) * phi[m] * phi[m];
-        // dE = phi_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
-        let correction = phi[m] * defect / (h2 * norm);
+        // dE = Y_m defect / (h^2 sum c_i phi_i^2), c = 2 mu r'^2.
+        let correction = out_at_m * defect / (h2 * norm);
         Shot {
             phi,
             matching_point: m,
@@ -1061,6 +1066,29 @@ mod tests {
             let residual = -y[i - 1] + a * y[i] - y[i + 1];
             assert!(residual.abs() < 1e-9 * largest, "point {i}: {residual:e}");
         }
+    }
+
+    #[test]
+    fn cooley_steps_converge_quadratically() {
+        // The step dE = Y_m defect / (h^2 sum c psi^2) is the Rayleigh-quotient step of the
+        // pencil A(E) (Y^T A Y = Y_m defect, Y^T A' Y = -h^2 sum c psi^2), so the error after a
+        // step is O(dE^2) (Cooley 1961). A step with psi_m = Y_m / (1 - h^2 Q_m / 12) in place
+        // of Y_m is off by h^2 Q_m / 12 of itself and converges only linearly: here, level 2 of
+        // V = (r - 10)^2 / 2 at h = 0.1 (Q_m near -5), by about 4e-3 per step. From 1e-5 above
+        // the level, the second step must be below 10 dE^2 (the level spacing is 1; the
+        // allowance 10 is ours), where the linear rate would leave about 4e-8.
+        let grid = UniformGrid {
+            start: 0.0,
+            step: 0.1,
+            intervals: 200,
+        };
+        let numerov = NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0));
+        let level = numerov.solve_level(2, 2.0, 3.0, Some(2.5), 1e-15).unwrap();
+        let start = level.energy + 1e-5;
+        let first = numerov.shoot(start, Vec::new()).correction;
+        let second = numerov.shoot(start + first, Vec::new()).correction;
+        assert!((first + 1e-5).abs() < 1e-7, "{first:e}");
+        assert!(second.abs() < 10.0 * first * first, "{first:e} {second:e}");
     }
 
     #[test]
