@@ -910,12 +910,10 @@ impl Ladder {
                 check_stretched_grid(problem, facts, &g, stretch.as_ref().map(|s| (s, lo)))?
             }
         };
-        // Seed: from the two rungs before, the next rung's energy to O(h^8)
-        // ([`next_rung_energy`]); after the first, the first moved by the change its leading
-        // error predicts (15/16 of it goes when the step halves), to O(h^6).
+        // Seed: the rung before, moved by the change its leading error predicts (15/16 of it
+        // goes when the step halves), to O(h^6).
         let seed = match self.rungs.as_slice() {
-            [.., a, b] => Some(next_rung_energy(a, b)),
-            [a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
+            [.., a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
             [] => seed,
         };
         let level = numerov
@@ -963,21 +961,6 @@ impl Ladder {
             numerov,
         )))
     }
-}
-
-/// The energy a level will have on the rung after `coarse` and `fine` (steps h, h/2; the next
-/// is h/4), to O(h^8). The energies go as E_h = E + a h^4 + b h^6 + O(h^8) and their leading
-/// errors as L_h = a h^4 + l h^6 + O(h^8) (even powers: the scheme is symmetric), so the four
-/// values fix E, A = a h^4, B = b h^6 and l h^6:
-///
-/// ```text
-///   A = (64 L_{h/2} - L_h) / 3,   B = (64/63) (E_h - E_{h/2} - 15 A / 16),
-///   E_{h/4} = E_{h/2} - 15 A / 256 - 63 B / 4096.
-/// ```
-fn next_rung_energy(coarse: &Rung, fine: &Rung) -> f64 {
-    let leading = (64.0 * fine.leading_error - coarse.leading_error) / 3.0;
-    let next_order = 64.0 / 63.0 * (coarse.energy - fine.energy - 15.0 / 16.0 * leading);
-    fine.energy - 15.0 / 256.0 * leading - 63.0 / 4096.0 * next_order
 }
 
 /// The Richardson value of a ladder and which rungs made it.
@@ -1149,38 +1132,5 @@ pub fn solve_manifold_with_progress(
             }
         }
         first += batch;
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn next_rung_energy_is_exact_for_series_ending_at_h6() {
-        // E_h = E + a h^4 + b h^6 and L_h = a h^4 + l h^6 (the series next_rung_energy
-        // assumes, cut after h^6): the prediction for h/4 is exact to rounding. With h^8 terms
-        // added, its error must fall as h^8 (by 2^8 = 256 per halving; 10% allowance for the
-        // h^10 remainder, ours).
-        let (e, a, b, l) = (0.3, 2.0, -5.0, 1.5);
-        let rung = |h: f64, c: f64, m: f64| Rung {
-            energy: e + a * h.powi(4) + b * h.powi(6) + c * h.powi(8) + 7.0 * h.powi(10),
-            leading_error: a * h.powi(4) + l * h.powi(6) + m * h.powi(8),
-            ..Rung::default()
-        };
-        let cut = |h: f64| Rung {
-            energy: e + a * h.powi(4) + b * h.powi(6),
-            leading_error: a * h.powi(4) + l * h.powi(6),
-            ..Rung::default()
-        };
-        let h = 0.2;
-        let predicted = next_rung_energy(&cut(h), &cut(h / 2.0));
-        assert!((predicted - cut(h / 4.0).energy).abs() < 1e-15);
-        let miss = |h: f64| {
-            let predicted = next_rung_energy(&rung(h, 3.0, -4.0), &rung(h / 2.0, 3.0, -4.0));
-            (predicted - rung(h / 4.0, 3.0, -4.0).energy).abs()
-        };
-        let ratio = miss(h) / miss(h / 2.0);
-        assert!((ratio / 256.0 - 1.0).abs() < 0.1, "{ratio}");
     }
 }
