@@ -685,7 +685,7 @@ impl NumerovGrid {
             let converged = correction.abs() < threshold || hi - lo < threshold;
             if converged || iterations > 100 {
                 return Some(GridLevel {
-                    energy: if converged {
+                    energy: if correction.abs() < threshold {
                         energy + correction
                     } else {
                         energy
@@ -758,10 +758,14 @@ struct Shot {
 
 /// Start of a shot: psi is set to this at the first point inside each end.
 const TINY: f64 = 1e-30;
-/// A shot is rescaled by this when it grows past it (deep forbidden regions of fixed grids),
-/// checked every CHUNK points: a step multiplies |psi| by at most |a| + 1 < 15 (the grid keeps
-/// h^2 Q / 12 below 1/2), so 15^32 HUGE stays far from overflow.
-const HUGE: f64 = 1e200;
+/// A shot is rescaled by this when it grows past it (long forbidden regions), checked every
+/// CHUNK points: a step multiplies |psi| by at most |a| + 1 < 15 (the grid keeps h^2 Q / 12
+/// below 1/2), so |Y| stays below 15^32 HUGE ~ 4e137. The norm sums c psi^2 over the march, so
+/// HUGE^2 must leave room too: (4e137)^2 ~ 2e275, times c <= 1e10 and 1e7 points, stays below
+/// the largest double (1.8e308), and the norm's own rescale by HUGE^2 = 1e200 is finite. (With
+/// 1e200 the squares overflowed and the norm became NaN on any march growing past 1e154: a
+/// shallow well's low levels on a box sized for the limit.)
+const HUGE: f64 = 1e100;
 const CHUNK: usize = 32;
 /// Half the width of the window in which a shot's matching point is chosen, points. With at
 /// most 160 points per local wavelength on the rungs used, 8 points either side of a node
@@ -1116,6 +1120,24 @@ mod tests {
             .max_by(|&a, &b| level.phi[a].abs().total_cmp(&level.phi[b].abs()))
             .unwrap();
         assert!(grid.r(peak) > 12.0, "peak at r = {}", grid.r(peak));
+    }
+
+    #[test]
+    fn long_forbidden_march_keeps_a_finite_norm() {
+        // V = (r - 10)^2 / 2 (mu = 1) on 0 .. 120, step 0.02: the inward march grows by about
+        // exp(int_11^120 (r - 10) dr) ~ e^6000 before it reaches the well, so it is rescaled
+        // many times; its norm (a sum of squares) must stay finite. Level 0 is 1/2 (textbook)
+        // up to Numerov's -h^4/256 (the test above), far below the 1e-6 asserted.
+        let grid = UniformGrid {
+            start: 0.0,
+            step: 0.02,
+            intervals: 6000,
+        };
+        let numerov = NumerovGrid::new(grid, 1.0, &|r| 0.5 * (r - 10.0) * (r - 10.0));
+        let shot = numerov.shoot(0.5, Vec::new());
+        assert!(shot.norm.is_finite() && shot.correction.is_finite());
+        let level = numerov.solve_level(0, 0.0, 1.0, None, 1e-12).unwrap();
+        assert!((level.energy - 0.5).abs() < 1e-6, "{}", level.energy);
     }
 
     #[test]
