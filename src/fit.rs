@@ -192,7 +192,7 @@ impl Setup<'_> {
                         wavefunction.expectation(|r| curve.parameter_derivative(index, r))
                     })
                     .collect();
-                if !level.converged {
+                if !level.converged() {
                     unconverged.push((s, level.v, j));
                 }
                 levels.insert((s, level.v, j), (level.energy, gradient));

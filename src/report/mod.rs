@@ -15,6 +15,9 @@ pub enum Cell {
     Integer(i64),
     Text(String),
     Flag(bool),
+    /// An error estimate: two significant figures for people (a rounded error must never read
+    /// as zero), every digit in CSV and JSON.
+    Error(f64),
     Missing,
 }
 
@@ -73,6 +76,7 @@ fn people_cell(cell: &Cell, decimals: usize) -> String {
             }
         }
         Cell::Number(x) => format!("{x}"),
+        Cell::Error(x) => format!("{x:.1e}"),
         Cell::Integer(i) => i.to_string(),
         Cell::Text(t) => t.clone(),
         Cell::Flag(b) => if *b { "yes" } else { "NO" }.to_string(),
@@ -84,8 +88,10 @@ fn csv_cell(cell: &Cell) -> String {
     match cell {
         // Shortest text that reads back to the same f64; exponent form for very small and
         // very large magnitudes, which plain decimals would spell out digit by digit.
-        Cell::Number(x) if *x != 0.0 && (x.abs() < 1e-4 || x.abs() >= 1e15) => format!("{x:e}"),
-        Cell::Number(x) => format!("{x}"),
+        Cell::Number(x) | Cell::Error(x) if *x != 0.0 && (x.abs() < 1e-4 || x.abs() >= 1e15) => {
+            format!("{x:e}")
+        }
+        Cell::Number(x) | Cell::Error(x) => format!("{x}"),
         Cell::Integer(i) => i.to_string(),
         Cell::Text(t) => t.clone(),
         Cell::Flag(b) => b.to_string(),
@@ -95,7 +101,7 @@ fn csv_cell(cell: &Cell) -> String {
 
 fn json_cell(cell: &Cell) -> serde_json::Value {
     match cell {
-        Cell::Number(x) => serde_json::Number::from_f64(*x)
+        Cell::Number(x) | Cell::Error(x) => serde_json::Number::from_f64(*x)
             .map_or(serde_json::Value::Null, serde_json::Value::Number),
         Cell::Integer(i) => serde_json::Value::from(*i),
         Cell::Text(t) => serde_json::Value::from(t.clone()),

@@ -3,7 +3,7 @@
 use super::{Cell, Column, Table};
 use crate::masses::Pair;
 use crate::reader::CurveSetup;
-use crate::solver::{LevelSet, Method};
+use crate::solver::{CountMethod, LevelSet, LevelStatus, Method};
 use crate::survey::Survey;
 use crate::units::{to_dalton, Unit};
 
@@ -200,56 +200,18 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
                 units.e(level.rotational_constant),
                 units.opt_e(level.centrifugal_distortion),
                 units.opt_e(level.sextic_distortion),
-                units.e(level.error_estimate),
-                Cell::Flag(level.converged),
+                Cell::Error(units.energy.from_atomic(level.error_estimate)),
+                Cell::Text(
+                    match level.status {
+                        LevelStatus::Converged => "yes",
+                        LevelStatus::NotConverged => "NO",
+                        LevelStatus::Unresolved => "UNRESOLVED",
+                    }
+                    .into(),
+                ),
             ]);
         }
-        let audit = &set.audit;
-        let method = match set.method {
-            Method::Numerov => "Numerov (Sturm count, Cooley, Richardson)",
-            Method::SincDvr => "sinc-DVR reference",
-        };
-        let mut count_note =
-            format!(
-            "J = {}: {} bound levels below the {} (method: {method}; counting box to {:.2} {lu}",
-            set.j,
-            audit.bound_levels,
-            if set.limit.is_some() { "dissociation limit" } else { "energy ceiling" },
-            units.length.from_atomic(audit.box_outer),
-        );
-        if audit.stable_on_doubling {
-            count_note += &format!(
-                ", count unchanged on doubling the box; a further level would be bound by less than {:.3e} {eu})",
-                units.energy.from_atomic(audit.undetectable_binding)
-            );
-        } else {
-            count_note += ")";
-        }
-        notes.push(count_note);
-        if let (Some(last), Some(limit)) = (set.levels.last(), set.limit) {
-            if set.levels.len() == audit.bound_levels {
-                notes.push(format!(
-                    "J = {}: least-bound level v = {} lies {:.6e} {eu} below the limit",
-                    set.j,
-                    last.v,
-                    units.energy.from_atomic(limit - last.energy)
-                ));
-            }
-        }
-        if audit.rejected_above_limit > 0 {
-            notes.push(format!(
-                "J = {}: {} level(s) the coarse counting grid placed just below the limit converged above it and are not bound",
-                set.j, audit.rejected_above_limit
-            ));
-        }
-        let unconverged: Vec<String> = set.unconverged().map(|l| l.v.to_string()).collect();
-        if !unconverged.is_empty() {
-            notes.push(format!(
-                "J = {}: NOT CONVERGED to the tolerance: v = {} (see error column; a finer --step or a larger --tolerance)",
-                set.j,
-                unconverged.join(", ")
-            ));
-        }
+        notes.extend(count_notes(set, units));
     }
     Table {
         title: format!("bound levels of {}", pair.label()),
@@ -257,6 +219,69 @@ pub fn levels_table(sets: &[LevelSet], pair: &Pair, units: DisplayUnits) -> Tabl
         rows,
         notes,
     }
+}
+
+/// What the count of one J rests on, where its least-bound level lies, and which levels are
+/// not certified.
+fn count_notes(set: &LevelSet, units: DisplayUnits) -> Vec<String> {
+    let (eu, lu) = (units.energy.name, units.length.name);
+    let j = set.j;
+    let n = set.audit.bound_levels;
+    let levels = if n == 1 { "level" } else { "levels" };
+    let method = match set.method {
+        Method::Numerov => "Numerov (Cooley, Richardson)",
+        Method::SincDvr => "sinc-DVR reference",
+    };
+    let mut notes = vec![match set.audit.method {
+        CountMethod::ZeroEnergyNodes { far_radius, settled } => {
+            let mut note = format!(
+                "J = {j}: {n} bound {levels} below the dissociation limit, counted by the zeros of the solution at the limit followed to r = {:.3e} {lu} (no box limits this count; levels by {method})",
+                units.length.from_atomic(far_radius)
+            );
+            if !settled {
+                note += "; the count cannot tell whether one more level sits at the limit itself, bound by less than it resolves";
+            }
+            note
+        }
+        CountMethod::Box { outer } => format!(
+            "J = {j}: {n} {levels} below the {} in the box to {:.2} {lu} (Sturm count; a box holds only levels whose tails fit in it; levels by {method})",
+            if set.limit.is_some() { "dissociation limit" } else { "energy ceiling" },
+            units.length.from_atomic(outer)
+        ),
+        CountMethod::Requested { tail_power } => format!(
+            "J = {j}: the curve's 1/r^{tail_power} tail holds infinitely many levels below the limit; the first {n} are listed, as asked (levels by {method})"
+        ),
+    }];
+    if let (Some(last), Some(limit)) = (set.levels.last(), set.limit) {
+        if last.status != LevelStatus::Unresolved && set.levels.len() == n {
+            notes.push(format!(
+                "J = {j}: least-bound level v = {} lies {:.6e} {eu} below the limit",
+                last.v,
+                units.energy.from_atomic(limit - last.energy)
+            ));
+        }
+    }
+    let listed = |status: LevelStatus| -> String {
+        set.levels
+            .iter()
+            .filter(|l| l.status == status)
+            .map(|l| l.v.to_string())
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let missed = listed(LevelStatus::NotConverged);
+    if !missed.is_empty() {
+        notes.push(format!(
+            "J = {j}: NOT CONVERGED to the tolerance: v = {missed} (see the error column; a larger --tolerance, or no fixed --step)"
+        ));
+    }
+    let unresolved = listed(LevelStatus::Unresolved);
+    if !unresolved.is_empty() {
+        notes.push(format!(
+            "J = {j}: UNRESOLVED: v = {unresolved} lies below the limit by the count but so close to it that its tail outgrows every grid up to the outer cap; the row gives the interval it lies in (energy +- error), not a solution"
+        ));
+    }
+    notes
 }
 
 /// Wavefunctions in long form: one row per grid point per level (each level keeps its own

@@ -11,8 +11,8 @@
 //! is reported. Cost O(N^3): a reference for tests and checks, not for production.
 
 use super::{
-    expectations, grid::UniformGrid, turning, CountAudit, Level, LevelSet, Method, RadialProblem,
-    SolverError, SolverSettings, Wavefunction, WellFacts,
+    expectations, grid::UniformGrid, turning, CountAudit, CountMethod, Level, LevelSet,
+    LevelStatus, Method, RadialProblem, SolverError, SolverSettings, Wavefunction, WellFacts,
 };
 use faer::{Mat, Side};
 
@@ -125,7 +125,11 @@ pub(super) fn solve_dvr(
             j: problem.j,
             energy,
             error_estimate,
-            converged: error_estimate <= settings.tolerance,
+            status: if error_estimate <= settings.tolerance {
+                LevelStatus::Converged
+            } else {
+                LevelStatus::NotConverged
+            },
             inner_turning_point: inner,
             outer_turning_point: outer,
             mean_r,
@@ -151,10 +155,7 @@ pub(super) fn solve_dvr(
         levels,
         audit: CountAudit {
             bound_levels: second.energies.iter().filter(|&&e| e < facts.top).count(),
-            box_outer: hi,
-            stable_on_doubling: false,
-            undetectable_binding: f64::NAN,
-            rejected_above_limit: 0,
+            method: CountMethod::Box { outer: hi },
         },
         wavefunctions,
         finest_grid: grid,

@@ -22,6 +22,7 @@ pub mod grid;
 pub mod mapping;
 pub mod numerov;
 mod shared;
+pub mod threshold;
 
 pub use shared::{solve_on_shared_grid, SharedLevels};
 
@@ -155,7 +156,7 @@ pub struct Level {
     pub j: u32,
     pub energy: f64,
     pub error_estimate: f64,
-    pub converged: bool,
+    pub status: LevelStatus,
     pub inner_turning_point: f64,
     pub outer_turning_point: f64,
     /// `<r>`, bohr.
@@ -171,6 +172,26 @@ pub struct Level {
     /// H_v, the next term (+ H_v [J(J+1)]^3), hartree, by third-order perturbation theory;
     /// NaN as D_v.
     pub sextic_distortion: f64,
+}
+
+impl Level {
+    /// The error estimate meets the tolerance.
+    pub fn converged(&self) -> bool {
+        self.status == LevelStatus::Converged
+    }
+}
+
+/// How far a level could be certified.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LevelStatus {
+    /// The error estimate meets the tolerance.
+    Converged,
+    /// The level was found, but its error estimate misses the tolerance.
+    NotConverged,
+    /// The count places the level below the limit, but no box up to the outer cap holds it
+    /// below the limit: it lies between the limit and `2 error_estimate` below it, and
+    /// `energy` is the middle of that interval, not a solution.
+    Unresolved,
 }
 
 /// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe.
@@ -199,17 +220,24 @@ impl Wavefunction {
 /// How the number of bound levels was established.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CountAudit {
-    /// Levels below the dissociation limit (or the ceiling) in the counting box.
+    /// Levels below the dissociation limit (or the ceiling).
     pub bound_levels: usize,
-    /// Outer end of the counting box, bohr.
-    pub box_outer: f64,
-    /// The count did not change when the box was doubled.
-    pub stable_on_doubling: bool,
-    /// A further level would have to be bound by less than this (hartree) to be missed.
-    pub undetectable_binding: f64,
-    /// Levels the coarse counting grid placed below the limit that rose above it once
-    /// converged (discretisation artefacts); they are not reported as bound.
-    pub rejected_above_limit: usize,
+    pub method: CountMethod,
+}
+
+/// The way a level count was made.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum CountMethod {
+    /// Zeros of the solution at the dissociation limit ([`threshold`]): no box limits it.
+    /// `settled` is false when a level may sit at the limit itself, bound by less than the count
+    /// resolves.
+    ZeroEnergyNodes { far_radius: f64, settled: bool },
+    /// Sturm count below the energy ceiling of a curve without a limit, or below the limit in
+    /// a grid range the user fixed (which may hold fewer levels than the curve has).
+    Box { outer: f64 },
+    /// A tail as slow as r^-`tail_power` holds infinitely many levels: the count is the number
+    /// asked for.
+    Requested { tail_power: u32 },
 }
 
 /// Every level asked for at one J, with what is needed to interpret them.
@@ -232,9 +260,9 @@ pub struct LevelSet {
 }
 
 impl LevelSet {
-    /// Levels whose error estimate exceeds the tolerance.
+    /// Levels not certified to the tolerance (missed it, or unresolved at the limit).
     pub fn unconverged(&self) -> impl Iterator<Item = &Level> {
-        self.levels.iter().filter(|l| !l.converged)
+        self.levels.iter().filter(|l| !l.converged())
     }
 }
 
@@ -261,6 +289,8 @@ pub enum SolverError {
     Bracket { v: u32, grid: String },
     #[error("the curve is not finite at r = {r:.6} bohr, inside the grid")]
     NotFinite { r: f64 },
+    #[error("the curve's tail falls off as slowly as 1/r^{power} and holds infinitely many levels below its limit (J = {j}); ask for the first ones with a highest v")]
+    InfinitelyManyLevels { power: u32, j: u32 },
 }
 
 /// Facts about the effective well shared by both methods.
@@ -509,13 +539,38 @@ fn counting_box(
             lattice,
             audit: CountAudit {
                 bound_levels,
-                box_outer: hi,
-                stable_on_doubling: false,
-                undetectable_binding: f64::NAN,
-                rejected_above_limit: 0,
+                method: CountMethod::Box { outer: hi },
             },
         });
     }
+    let audit = if facts.top_is_limit {
+        match threshold::classify_tail(problem, facts.top, facts.r_floor) {
+            threshold::TailClass::Finite => {
+                let count = threshold::count_below_limit(problem, facts.top, inner_turning);
+                Some(CountAudit {
+                    bound_levels: count.levels,
+                    method: CountMethod::ZeroEnergyNodes {
+                        far_radius: count.far_radius,
+                        settled: count.settled,
+                    },
+                })
+            }
+            threshold::TailClass::Infinite { power } => match settings.highest_v {
+                Some(v) => Some(CountAudit {
+                    bound_levels: v as usize + 1,
+                    method: CountMethod::Requested { tail_power: power },
+                }),
+                None => {
+                    return Err(SolverError::InfinitelyManyLevels {
+                        power,
+                        j: problem.j,
+                    });
+                }
+            },
+        }
+    } else {
+        None
+    };
     // The wall must be reached deep enough (decay target) before the Numerov factor limit
     // stops the grid; an automatic step is halved until it is.
     let mut step = step;
@@ -533,38 +588,22 @@ fn counting_box(
         }
         step *= 0.5;
     };
-    // Start with the box a level bound by 1e-4 of the depth would need; double until stable.
-    let probe = facts.top - 1e-4 * depth;
+    // The box a level bound by 1e-4 of the depth needs (1e-2 for a tail with infinitely many
+    // levels, whose boxes grow level by level): the levels' grids are cut from its lattice
+    // (the coarse grid halved twice), and each level's own box grows past it when needed.
+    let probe_binding = match audit {
+        Some(CountAudit {
+            method: CountMethod::Requested { .. },
+            ..
+        }) => 1e-2,
+        _ => 1e-4,
+    };
+    let probe = facts.top - probe_binding * depth;
     let (_, probe_outer) = turning(problem, facts, probe, cap);
-    let mut end = grid::outer_bound(problem, probe, probe_outer, cap);
-    // Each wider box continues the grid before it and the lattice halves the coarse grid
-    // twice, so no point is evaluated twice.
+    let end = grid::outer_bound(problem, probe, probe_outer, cap);
     let potential = |r: f64| problem.effective(r) - facts.curve_minimum;
-    let below_top = |numerov: &NumerovGrid| numerov.count_below(facts.top - facts.curve_minimum);
-    let mut coarse = covering(start, end, step);
-    let mut coarse_numerov = check_grid(problem, facts, &coarse)?;
-    let mut count = below_top(&coarse_numerov);
-    let mut stable = !facts.top_is_limit;
-    while facts.top_is_limit && end < cap {
-        let doubled = (start + 2.0 * (end - start)).min(cap);
-        let wider = covering(start, doubled, step);
-        let wider_numerov = check_factor(
-            problem,
-            facts,
-            &wider,
-            finite(coarse_numerov.extended(wider.intervals, &potential))?,
-            lowest_energy(facts),
-        )?;
-        let wider_count = below_top(&wider_numerov);
-        if wider_count == count {
-            stable = true;
-            break;
-        }
-        (coarse, coarse_numerov, count, end) = (wider, wider_numerov, wider_count, doubled);
-    }
-    // The coarse step can also push a level just below the limit above it: count again on
-    // the finest step of the Richardson sequence and keep the larger count (levels that end
-    // up above the limit once converged are rejected later).
+    let coarse = covering(start, end, step);
+    let coarse_numerov = check_grid(problem, facts, &coarse)?;
     let lattice = check_factor(
         problem,
         facts,
@@ -576,26 +615,17 @@ fn counting_box(
         )?,
         lowest_energy(facts),
     )?;
-    if facts.top_is_limit {
-        count = count.max(below_top(&lattice));
-    }
-    // A level needing more than twice this box to show would be bound by less than this.
-    let undetectable_binding = if facts.top_is_limit {
-        let reach = 2.0 * (end - start);
-        (grid::DECAY_TARGET / reach).powi(2) / (2.0 * problem.reduced_mass)
-    } else {
-        0.0
-    };
+    // Below a ceiling the levels are counted in the box, on its finest grid.
+    let audit = audit.unwrap_or_else(|| CountAudit {
+        bound_levels: lattice.count_below(facts.top - facts.curve_minimum),
+        method: CountMethod::Box {
+            outer: coarse.end(),
+        },
+    });
     Ok(Counting {
         coarse,
         lattice,
-        audit: CountAudit {
-            bound_levels: count,
-            box_outer: coarse.end(),
-            stable_on_doubling: stable,
-            undetectable_binding,
-            rejected_above_limit: 0,
-        },
+        audit,
     })
 }
 
@@ -655,25 +685,15 @@ fn solve_numerov(
     let mut levels = Vec::with_capacity(count);
     let mut wavefunctions = Vec::new();
     let mut finest_grid = counting.coarse;
-    let mut audit = counting.audit.clone();
     for slot in solved {
         let s = slot
             .into_inner()
             .expect("every opened ladder was climbed")?;
-        // The coarse count can hold a level just above the limit (coarse Numerov lowers
-        // energies); converged, it is not bound.
-        if facts.top_is_limit && s.level.energy >= facts.top {
-            audit.rejected_above_limit += 1;
-            audit.bound_levels -= 1;
-            continue;
-        }
         finest_grid = s.grid;
         levels.push(s.level);
         wavefunctions.extend(s.wavefunction);
     }
-    if levels.is_empty() {
-        return Err(SolverError::NothingBound { j: problem.j });
-    }
+    let audit = counting.audit.clone();
     Ok(LevelSet {
         j: problem.j,
         reduced_mass: problem.reduced_mass,
@@ -751,6 +771,7 @@ fn open_ladder(
     };
     let mut ladder = Ladder {
         base,
+        sized_for: seed,
         coarsest,
         stretch,
         rungs: Vec::new(),
@@ -762,40 +783,88 @@ fn open_ladder(
     Ok(ladder)
 }
 
-/// Climb a level's ladder until its estimate meets the tolerance. The box must also hold the
-/// converged level's tail (it was sized from a seed, inside the counting box), to the decay
-/// [`grid::DECAY_HELD`]: if it does not, the ladder starts again in a box sized by the
-/// converged energy, up to the outer cap.
+/// Box growths a level may take before it is given up as unresolved.
+const MAX_BOX_GROWTHS: usize = 24;
+
+/// Climb a level's ladder until its estimate meets the tolerance. The box was sized from a
+/// seed, inside the counting box, so once the level is known its box is checked:
+///
+/// - a level the count places below the limit that converged above it was pushed up by a box
+///   too short for its tail: the ladder starts again in a box sized for a binding 16 times
+///   smaller (a tail four times longer), up to the outer cap, where it is reported as
+///   [`LevelStatus::Unresolved`];
+/// - a bound level's box must hold its tail to the decay [`grid::DECAY_HELD`]: if it does not,
+///   the ladder starts again in a box sized by the converged energy.
 fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverError> {
     let (problem, facts) = (job.problem, job.facts);
     let floor = facts.curve_minimum;
     let cap = job.settings.outer_cap;
-    for box_growths in 0.. {
-        let solved = loop {
-            if let Some(solved) = ladder.climb(job, v, None)? {
-                break solved;
+    let top = facts.top - floor;
+    let mut solved = None;
+    for _ in 0..MAX_BOX_GROWTHS {
+        let level = loop {
+            if let Some(level) = ladder.climb(job, v, None)? {
+                break level;
             }
         };
-        // (A level the coarse count placed below the limit that converged above it is not
-        // bound and will be rejected: it has no tail to hold.)
-        let bound = !facts.top_is_limit || solved.level.energy < facts.top;
-        if !job.fixed_range && bound && ladder.base.end() < cap && box_growths < 4 {
-            let (energy, outer) = (solved.level.energy, solved.level.outer_turning_point);
-            let held = grid::outer_bound_for(problem, energy, outer, cap, grid::DECAY_HELD);
-            if held > ladder.base.end() {
-                // The first rung of the new box differs from the level by about what the
-                // first rung of this one did: bracket it by a few times that (the grid's
-                // validity is checked down to the bracket's foot).
-                let energy = solved.level.energy - floor;
-                let spread = 4.0 * (ladder.rungs[0].energy - energy).abs();
-                let bracket = (energy - spread, energy + spread);
-                ladder = open_ladder(job, v, energy, bracket, cap)?;
-                continue;
-            }
+        if job.fixed_range {
+            return Ok(level);
         }
-        return Ok(solved);
+        let energy = level.level.energy - floor;
+        if facts.top_is_limit && energy >= top {
+            if ladder.base.end() >= cap {
+                return Ok(unresolved(job, v, ladder.base.end()));
+            }
+            let binding = (top - ladder.sized_for) / 16.0;
+            let bracket = (ladder.sized_for, top);
+            ladder = open_ladder(job, v, top - binding, bracket, cap)?;
+            continue;
+        }
+        let outer = level.level.outer_turning_point;
+        let held = grid::outer_bound_for(problem, level.level.energy, outer, cap, grid::DECAY_HELD);
+        if held > ladder.base.end() && ladder.base.end() < cap {
+            // The first rung of the new box differs from the level by about what the first
+            // rung of this one did: bracket it by a few times that (the grid's validity is
+            // checked down to the bracket's foot).
+            let spread = 4.0 * (ladder.rungs[0].energy - energy).abs();
+            let bracket = (energy - spread, (energy + spread).min(top));
+            ladder = open_ladder(job, v, energy, bracket, cap)?;
+            solved = Some(level);
+            continue;
+        }
+        return Ok(level);
     }
-    unreachable!("the loop returns")
+    Ok(solved.unwrap_or_else(|| unresolved(job, v, ladder.base.end())))
+}
+
+/// Level v, which the count places below the limit but no box up to `reach` (bohr) held
+/// there. A level bound by eps has a tail of length about 1/sqrt(2 mu eps) (its scattering
+/// length, for binding small against the well); a box reaching R past the well holds it below
+/// the limit once R exceeds that, so this one is bound by less than 1 / (2 mu (R - r_e)^2). It
+/// is reported as the middle of that interval with half its width as the error.
+fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
+    let (problem, facts) = (job.problem, job.facts);
+    let length = reach - facts.r_floor;
+    let bound = 1.0 / (2.0 * problem.reduced_mass * length * length);
+    let (inner, _) = turning(problem, facts, facts.top, reach);
+    Solved {
+        level: Level {
+            v: v as u32,
+            j: problem.j,
+            energy: facts.top - 0.5 * bound,
+            error_estimate: 0.5 * bound,
+            status: LevelStatus::Unresolved,
+            inner_turning_point: inner,
+            outer_turning_point: f64::NAN,
+            mean_r: f64::NAN,
+            mean_inverse_r2: f64::NAN,
+            rotational_constant: f64::NAN,
+            centrifugal_distortion: f64::NAN,
+            sextic_distortion: f64::NAN,
+        },
+        wavefunction: None,
+        grid: job.counting.coarse,
+    }
 }
 
 /// Points per decay length 1/kappa in a stretched tail on the coarsest grid.
@@ -854,6 +923,8 @@ struct Rung {
 struct Ladder {
     /// The box in r (before any stretch).
     base: UniformGrid,
+    /// The energy (relative to the curve minimum) the box was sized for.
+    sized_for: f64,
     /// The first rung's grid (uniform in x when stretched).
     coarsest: UniformGrid,
     stretch: Option<mapping::Stretch>,
@@ -1069,7 +1140,11 @@ fn finish_level(
             j: problem.j,
             energy: absolute,
             error_estimate: estimate.error,
-            converged: estimate.error <= settings.tolerance,
+            status: if estimate.error <= settings.tolerance {
+                LevelStatus::Converged
+            } else {
+                LevelStatus::NotConverged
+            },
             inner_turning_point: inner,
             outer_turning_point: outer,
             mean_r,
