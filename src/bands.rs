@@ -3,10 +3,11 @@
 //! moments, Einstein A coefficients, oscillator strengths and radiative lifetimes.
 //!
 //! All integrals are sums over the shared sinc-DVR grid of
-//! [`crate::solver::solve_on_shared_grid`] (its quadrature is exact for the DVR basis):
+//! [`crate::solver::solve_on_shared_grid`] with its quadrature weights w_i (exact for the DVR
+//! basis):
 //!
 //! ```text
-//!   <v'|v''>        = h sum_i psi'_i psi''_i                q(v', v'') = <v'|v''>^2
+//!   <v'|v''>        = sum_i w_i psi'_i psi''_i              q(v', v'') = <v'|v''>^2
 //!   r-centroid      = <v'|r|v''> / <v'|v''>
 //!   M(v', v'')      = <v'|mu(r)|v''>
 //!   A(v' -> v'')    = 4 omega^3 |M|^2 / (3 c^3)             (atomic units; omega = E' - E'')
@@ -82,14 +83,7 @@ pub fn bands(
             if within_one_curve && up_level.v <= low_level.v {
                 continue;
             }
-            let integral = |f: &dyn Fn(f64) -> f64| -> f64 {
-                let h = up.r[1] - up.r[0];
-                up.r.iter()
-                    .zip(up.psi.iter().zip(&low.psi))
-                    .map(|(&r, (a, b))| a * b * f(r))
-                    .sum::<f64>()
-                    * h
-            };
+            let integral = |f: &dyn Fn(f64) -> f64| -> f64 { upper.integral(up, low, f) };
             let overlap = integral(&|_| 1.0);
             let r_centroid = (overlap.abs() > 1e-8).then(|| integral(&|r| r) / overlap);
             let origin = up_level.energy + offset - low_level.energy;

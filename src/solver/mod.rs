@@ -254,9 +254,6 @@ pub struct LevelSet {
     pub levels: Vec<Level>,
     pub audit: CountAudit,
     pub wavefunctions: Vec<Wavefunction>,
-    /// The finest grid used for the least-bound level (uniform in the stretched coordinate x
-    /// when its tail was stretched; see [`mapping`]).
-    pub finest_grid: UniformGrid,
 }
 
 impl LevelSet {
@@ -633,7 +630,6 @@ fn counting_box(
 struct Solved {
     level: Level,
     wavefunction: Option<Wavefunction>,
-    grid: UniformGrid,
 }
 
 fn solve_numerov(
@@ -684,12 +680,10 @@ fn solve_numerov(
     })?;
     let mut levels = Vec::with_capacity(count);
     let mut wavefunctions = Vec::new();
-    let mut finest_grid = counting.coarse;
     for slot in solved {
         let s = slot
             .into_inner()
             .expect("every opened ladder was climbed")?;
-        finest_grid = s.grid;
         levels.push(s.level);
         wavefunctions.extend(s.wavefunction);
     }
@@ -703,21 +697,7 @@ fn solve_numerov(
         levels,
         audit,
         wavefunctions,
-        finest_grid,
     })
-}
-
-/// Expectation values (h sum) of r and r^-2 for a normalised psi on a grid.
-fn expectations(grid: &UniformGrid, psi: &[f64]) -> (f64, f64) {
-    let mut mean_r = 0.0;
-    let mut mean_inv = 0.0;
-    for (i, p) in psi.iter().enumerate() {
-        let r = grid.r(i);
-        let weight = p * p * grid.step;
-        mean_r += weight * r;
-        mean_inv += weight / (r * r);
-    }
-    (mean_r, mean_inv)
 }
 
 /// What every level of one J shares.
@@ -863,7 +843,6 @@ fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
             sextic_distortion: f64::NAN,
         },
         wavefunction: None,
-        grid: job.counting.coarse,
     }
 }
 
@@ -1161,7 +1140,6 @@ fn finish_level(
                 psi,
             }
         }),
-        grid: finest.grid,
     }
 }
 

@@ -2,15 +2,16 @@
 //! between them (Franck-Condon factors, transition dipoles).
 //!
 //! Each problem is first solved by Numerov (certified energies and the level count). The grid
-//! is then the union of what each problem's highest wanted level needs (its classical region
-//! plus the decay of its tails, as in [`super::grid`]) at the finest of their steps, and every
-//! problem is diagonalised there by the Colbert-Miller sinc-DVR. Sinc-DVR eigenvectors converge
-//! exponentially with the step, so a sum over the shared points is an overlap integral to
-//! near machine precision; no interpolation between grids is needed. The wavefunctions are
-//! normalised to sum psi_i^2 h = 1 and positive on their innermost lobe.
+//! is then one mapped sinc-DVR grid ([`super::dvr`]) over the union of what each problem's
+//! highest wanted level needs (its classical region plus the decay of its tails, as in
+//! [`super::grid`]), resolving every problem at [`SHARED_POINTS_PER_WAVELENGTH`], and every
+//! problem is diagonalised there. Sinc-DVR eigenvectors converge exponentially with the step,
+//! so the grid's quadrature, int f dr = sum_i f(r_i) w_i, gives overlap integrals to near
+//! machine precision; no interpolation between grids is needed. The mapped grid keeps a level
+//! near the dissociation limit, whose tail reaches hundreds of bohr, to a few hundred points.
 
 use super::{
-    dvr::{solve_dvr, DVR_POINTS_PER_WAVELENGTH},
+    dvr::{diagonalise, MappedGrid},
     grid, solve, turning, well_facts, LevelSet, Method, RadialProblem, SolverError, SolverSettings,
     Wavefunction,
 };
@@ -20,15 +21,30 @@ use super::{
 pub struct SharedLevels {
     /// Numerov levels (the energies to report), v = 0 .. highest.
     pub levels: LevelSet,
-    /// Sinc-DVR wavefunctions on the shared grid, same v order.
+    /// Sinc-DVR wavefunctions on the shared grid, same v order (psi at the points r_i,
+    /// normalised, positive on the innermost lobe).
     pub wavefunctions: Vec<Wavefunction>,
+    /// Quadrature weights of the shared grid: int f(r) dr = sum_i f(r_i) weights_i.
+    pub weights: Vec<f64>,
     /// Largest |E_DVR - E_Numerov| over the levels, hartree: a check that the shared grid
     /// resolves every wavefunction.
     pub grid_disagreement: f64,
 }
 
-/// Extra margin (fraction of the finest automatic step) for the shared grid.
-const SHARED_STEP_FACTOR: f64 = 0.8;
+impl SharedLevels {
+    /// int psi_a f(r) psi_b dr over the shared grid, for wavefunctions `a` and `b` of this or
+    /// another problem solved on the same grid.
+    pub fn integral(&self, a: &Wavefunction, b: &Wavefunction, f: impl Fn(f64) -> f64) -> f64 {
+        a.r.iter()
+            .zip(&self.weights)
+            .zip(a.psi.iter().zip(&b.psi))
+            .map(|((&r, w), (x, y))| w * x * y * f(r))
+            .sum()
+    }
+}
+
+/// Points per local wavelength of the shared grid (the reference's 4, with a margin).
+pub const SHARED_POINTS_PER_WAVELENGTH: f64 = 5.0;
 
 /// Solve each problem up to its highest v (None: every bound level) on one shared grid.
 pub fn solve_on_shared_grid(
@@ -36,7 +52,8 @@ pub fn solve_on_shared_grid(
     settings: &SolverSettings,
 ) -> Result<Vec<SharedLevels>, SolverError> {
     let mut numerov = Vec::with_capacity(problems.len());
-    let (mut lo, mut hi, mut step) = (f64::INFINITY, 0.0f64, f64::INFINITY);
+    // Each problem's top energy and the range its wavefunctions need.
+    let mut needs = Vec::with_capacity(problems.len());
     for (problem, highest_v) in problems {
         let own = settings
             .clone()
@@ -48,40 +65,54 @@ pub fn solve_on_shared_grid(
         let facts = well_facts(problem, &own)?;
         let top = set.levels.last().map_or(facts.top, |l| l.energy);
         let (inner, outer) = turning(problem, &facts, top, settings.outer_cap);
-        let own_step = grid::step_for(problem, top, facts.floor, DVR_POINTS_PER_WAVELENGTH);
-        let (start, _) = grid::inner_bound(problem, top, inner, own_step, f64::INFINITY);
-        lo = lo.min(start);
-        hi = hi.max(grid::outer_bound(problem, top, outer, settings.outer_cap));
-        step = step.min(own_step);
+        let (start, _) = grid::inner_bound(problem, top, inner, 1e-3, f64::INFINITY);
+        let end = grid::outer_bound(problem, top, outer, settings.outer_cap);
+        needs.push((top, start, end));
         numerov.push(set);
     }
-    let shared = settings
-        .clone()
-        .with_method(Method::SincDvr)
-        .with_wavefunctions(true)
-        .with_grid(Some((lo, hi)), Some(SHARED_STEP_FACTOR * step));
+    let lo = needs.iter().map(|n| n.1).fold(f64::INFINITY, f64::min);
+    let hi = needs.iter().map(|n| n.2).fold(0.0, f64::max);
+    // The finest of the problems' local steps at every r, each problem only over the range its
+    // wavefunctions need (beyond it they have decayed by e^-30 and set no step).
+    let local_step = |r: f64| -> f64 {
+        problems
+            .iter()
+            .zip(&needs)
+            .filter(|(_, (_, start, end))| (*start..=*end).contains(&r))
+            .map(|((problem, _), (top, _, _))| {
+                let k = (2.0 * problem.reduced_mass * (top - problem.effective(r)).abs()).sqrt();
+                2.0 * std::f64::consts::PI / (SHARED_POINTS_PER_WAVELENGTH * k.max(1e-300))
+            })
+            .fold(f64::INFINITY, f64::min)
+    };
+    let grid = MappedGrid::fitted(lo, hi, &local_step);
+    let weights: Vec<f64> = (0..grid.points).map(|i| grid.weight(i)).collect();
     problems
         .iter()
         .zip(numerov)
         .map(|((problem, _), levels)| {
-            let highest = levels.levels.last().map(|l| l.v);
-            let facts = well_facts(problem, &shared)?;
-            let dvr = solve_dvr(problem, &shared.clone().with_highest_v(highest), &facts)?;
+            let dvr = diagonalise(problem, grid, true)?;
+            let count = levels.levels.len();
             let grid_disagreement = levels
                 .levels
                 .iter()
-                .zip(&dvr.levels)
-                .map(|(a, b)| (a.energy - b.energy).abs())
+                .zip(&dvr.energies)
+                .map(|(a, b)| (a.energy - b).abs())
                 .fold(0.0, f64::max);
-            if dvr.levels.len() < levels.levels.len() {
-                return Err(SolverError::Bracket {
-                    v: dvr.levels.len() as u32,
-                    grid: format!("shared sinc-DVR grid {lo:.4} .. {hi:.4} bohr"),
-                });
-            }
+            let wavefunctions = (0..count)
+                .map(|k| {
+                    let (r, psi) = dvr.wavefunction(k).expect("vectors were kept");
+                    Wavefunction {
+                        v: levels.levels[k].v,
+                        r,
+                        psi,
+                    }
+                })
+                .collect();
             Ok(SharedLevels {
                 levels,
-                wavefunctions: dvr.wavefunctions,
+                wavefunctions,
+                weights: weights.clone(),
                 grid_disagreement,
             })
         })
