@@ -4,7 +4,7 @@
 //!
 //! All integrals are sums over the shared sinc-DVR grid of
 //! [`crate::solver::solve_on_shared_grid`] with its quadrature weights w_i (exact for the DVR
-//! basis):
+//! basis; [`crate::solver::Wavefunction::overlap_with`]):
 //!
 //! ```text
 //!   <v'|v''>        = sum_i w_i psi'_i psi''_i              q(v', v'') = <v'|v''>^2
@@ -83,7 +83,7 @@ pub fn bands(
             if within_one_curve && up_level.v <= low_level.v {
                 continue;
             }
-            let integral = |f: &dyn Fn(f64) -> f64| -> f64 { upper.integral(up, low, f) };
+            let integral = |f: &dyn Fn(f64) -> f64| -> f64 { up.overlap_with(low, f) };
             let overlap = integral(&|_| 1.0);
             let r_centroid = (overlap.abs() > 1e-8).then(|| integral(&|r| r) / overlap);
             let origin = up_level.energy + offset - low_level.energy;

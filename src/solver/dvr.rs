@@ -141,8 +141,8 @@ pub struct DvrSolution {
 }
 
 impl DvrSolution {
-    /// psi of level k at the grid points, positive on its innermost lobe, with its r_i.
-    pub fn wavefunction(&self, k: usize) -> Option<(Vec<f64>, Vec<f64>)> {
+    /// Level k's wavefunction on the grid points, positive on its innermost lobe.
+    pub fn wavefunction(&self, k: usize) -> Option<Wavefunction> {
         let vectors = self.vectors.as_ref()?;
         let grid = &self.grid;
         let mut psi: Vec<f64> = (0..grid.points)
@@ -156,7 +156,12 @@ impl DvrSolution {
         {
             psi.iter_mut().for_each(|p| *p = -*p);
         }
-        Some(((0..grid.points).map(|i| grid.r(i)).collect(), psi))
+        Some(Wavefunction {
+            v: k as u32,
+            r: (0..grid.points).map(|i| grid.r(i)).collect(),
+            psi,
+            weights: (0..grid.points).map(|i| grid.weight(i)).collect(),
+        })
     }
 
     /// <k| f(r) |k> = sum_i chi_i^2 f(r_i).
@@ -317,12 +322,7 @@ pub(super) fn solve_dvr(
             sextic_distortion: f64::NAN,
         });
         if settings.keep_wavefunctions {
-            let (r, psi) = second.wavefunction(v).expect("vectors were kept");
-            wavefunctions.push(Wavefunction {
-                v: v as u32,
-                r,
-                psi,
-            });
+            wavefunctions.push(second.wavefunction(v).expect("vectors were kept"));
         }
     }
     Ok(LevelSet {

@@ -194,25 +194,33 @@ pub enum LevelStatus {
     Unresolved,
 }
 
-/// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe.
+/// A wavefunction on its grid, normalised to int psi^2 dr = 1, positive on its innermost lobe,
+/// with the grid's quadrature weights: int f(r) dr = sum_i f(r_i) weights_i for smooth f that
+/// vanish at both ends (h r'(x_i) on a grid uniform in a coordinate x, a rule of the grid's
+/// own order there).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Wavefunction {
     pub v: u32,
     pub r: Vec<f64>,
     pub psi: Vec<f64>,
+    pub weights: Vec<f64>,
 }
 
 impl Wavefunction {
-    /// <psi| f(r) |psi> by the trapezoidal rule over the wavefunction's points (uniform or
-    /// stretched); for a function that vanishes at both ends of its grid the rule is accurate
-    /// far beyond its nominal second order on a uniform grid.
+    /// <psi| f(r) |psi>.
     pub fn expectation(&self, f: impl Fn(f64) -> f64) -> f64 {
+        self.overlap_with(self, f)
+    }
+
+    /// <psi| f(r) |other> for a wavefunction on the same grid (for instance of another curve
+    /// solved on a shared grid).
+    pub fn overlap_with(&self, other: &Wavefunction, f: impl Fn(f64) -> f64) -> f64 {
+        debug_assert_eq!(self.r.len(), other.r.len());
         self.r
-            .windows(2)
-            .zip(self.psi.windows(2))
-            .map(|(r, psi)| {
-                0.5 * (r[1] - r[0]) * (psi[0] * psi[0] * f(r[0]) + psi[1] * psi[1] * f(r[1]))
-            })
+            .iter()
+            .zip(&self.weights)
+            .zip(self.psi.iter().zip(&other.psi))
+            .map(|((&r, w), (a, b))| w * a * b * f(r))
             .sum()
     }
 }
@@ -1133,11 +1141,12 @@ fn finish_level(
             sextic_distortion,
         },
         wavefunction: settings.keep_wavefunctions.then(|| {
-            let (r, psi) = finest.wavefunction(&level.phi);
+            let (r, psi, weights) = finest.wavefunction(&level.phi);
             Wavefunction {
                 v: v as u32,
                 r,
                 psi,
+                weights,
             }
         }),
     }

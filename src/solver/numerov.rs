@@ -247,15 +247,18 @@ impl NumerovGrid {
         (mean_r * self.grid.step, mean_inv * self.grid.step)
     }
 
-    /// The wavefunction psi(r_i) = sqrt(r'_i) phi_i with its r_i.
-    pub fn wavefunction(&self, phi: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    /// The wavefunction psi(r_i) = sqrt(r'_i) phi_i with its r_i and the quadrature weights
+    /// h r'_i (int f dr = int f r' dx).
+    pub fn wavefunction(&self, phi: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+        let slope = |i: usize| self.stretch_weight(i).sqrt();
         let r = (0..phi.len()).map(|i| self.radius(i)).collect();
         let psi = phi
             .iter()
             .enumerate()
-            .map(|(i, p)| p * self.stretch_weight(i).sqrt().sqrt())
+            .map(|(i, p)| p * slope(i).sqrt())
             .collect();
-        (r, psi)
+        let weights = (0..phi.len()).map(|i| self.grid.step * slope(i)).collect();
+        (r, psi, weights)
     }
 
     /// The leading discretisation error of a level on this grid, E_h - E = -(h^4/240)

@@ -22,25 +22,12 @@ pub struct SharedLevels {
     /// Numerov levels (the energies to report), v = 0 .. highest.
     pub levels: LevelSet,
     /// Sinc-DVR wavefunctions on the shared grid, same v order (psi at the points r_i,
-    /// normalised, positive on the innermost lobe).
+    /// normalised, positive on the innermost lobe; integrals between them by
+    /// [`Wavefunction::overlap_with`]).
     pub wavefunctions: Vec<Wavefunction>,
-    /// Quadrature weights of the shared grid: int f(r) dr = sum_i f(r_i) weights_i.
-    pub weights: Vec<f64>,
     /// Largest |E_DVR - E_Numerov| over the levels, hartree: a check that the shared grid
     /// resolves every wavefunction.
     pub grid_disagreement: f64,
-}
-
-impl SharedLevels {
-    /// int psi_a f(r) psi_b dr over the shared grid, for wavefunctions `a` and `b` of this or
-    /// another problem solved on the same grid.
-    pub fn integral(&self, a: &Wavefunction, b: &Wavefunction, f: impl Fn(f64) -> f64) -> f64 {
-        a.r.iter()
-            .zip(&self.weights)
-            .zip(a.psi.iter().zip(&b.psi))
-            .map(|((&r, w), (x, y))| w * x * y * f(r))
-            .sum()
-    }
 }
 
 /// Points per local wavelength of the shared grid (the reference's 4, with a margin).
@@ -86,7 +73,6 @@ pub fn solve_on_shared_grid(
             .fold(f64::INFINITY, f64::min)
     };
     let grid = MappedGrid::fitted(lo, hi, &local_step);
-    let weights: Vec<f64> = (0..grid.points).map(|i| grid.weight(i)).collect();
     problems
         .iter()
         .zip(numerov)
@@ -100,19 +86,14 @@ pub fn solve_on_shared_grid(
                 .map(|(a, b)| (a.energy - b).abs())
                 .fold(0.0, f64::max);
             let wavefunctions = (0..count)
-                .map(|k| {
-                    let (r, psi) = dvr.wavefunction(k).expect("vectors were kept");
-                    Wavefunction {
-                        v: levels.levels[k].v,
-                        r,
-                        psi,
-                    }
+                .map(|k| Wavefunction {
+                    v: levels.levels[k].v,
+                    ..dvr.wavefunction(k).expect("vectors were kept")
                 })
                 .collect();
             Ok(SharedLevels {
                 levels,
                 wavefunctions,
-                weights: weights.clone(),
                 grid_disagreement,
             })
         })
