@@ -1,22 +1,22 @@
 //! Reference method: the Colbert-Miller sinc-DVR in a mapped coordinate.
 //!
-//! The radial coordinate is stretched, r(x) = r_0 + L (e^x - 1) on a grid uniform in x: the
-//! step in r, h (r - r_0 + L), is nearly uniform well inside r_0 + L and grows in proportion to
-//! r beyond it, so a wavefunction reaching 10^5 bohr from a well a few bohr wide needs hundreds
+//! The radial coordinate is stretched, r(x) = r_0 + L (e^((x - r_0)/L) - 1) on a grid uniform
+//! in x ([`super::mapping`]): the step in r, h (1 + (r - r_0)/L), is nearly uniform well inside
+//! r_0 + L and grows in proportion to r beyond it, so a wavefunction reaching 10^5 bohr from a well a few bohr wide needs hundreds
 //! of points, not millions (a mapped Fourier grid in the sense of V. Kokoouline, O. Dulieu,
 //! R. Kosloff and F. Masnou-Seeuws, J. Chem. Phys. 110, 9865 (1999); recalled from memory). The
 //! map's scale L is chosen per curve to need the fewest points while the local step stays below
 //! 2 pi / (P k(r)) everywhere, k(r) = sqrt(2 mu |E_top - V_eff(r)|), with P points per local
 //! wavelength.
 //!
-//! With psi(r) = r'(x)^(1/2) phi(x) (the Liouville transformation of [`super::mapping`]; for
-//! this map the Schwarzian term is F = 1/4), the radial equation becomes
+//! With psi(r) = r'(x)^(1/2) phi(x) (the Liouville transformation of [`super::mapping`], whose
+//! Schwarzian term for this map is the constant F = 1/(4 L^2)), the radial equation becomes
 //! -phi''/(2 mu) + [r'^2 V_eff + F/(2 mu)] phi = E r'^2 phi, and with chi_i = r'_i sqrt(h) phi_i
 //! the sinc-DVR of d^2/dx^2 (D.T. Colbert and W.H. Miller, J. Chem. Phys. 96, 1982 (1992),
 //! eq. (A7)) gives the symmetric matrix
 //!
 //! ```text
-//!   H_ij = T_ij / (r'_i r'_j) + delta_ij [V_eff(r_i) + 1 / (8 mu r'_i^2)],
+//!   H_ij = T_ij / (r'_i r'_j) + delta_ij [V_eff(r_i) + F / (2 mu r'_i^2)],
 //!   T_ij = 1/(2 mu h^2) (-1)^(i-j) * { pi^2/3 (i = j);  2/(i-j)^2 (i != j) },
 //! ```
 //!
@@ -27,6 +27,7 @@
 //! result is reported. Cost O(N^3): a reference for tests and checks, and the common grid of
 //! band calculations, not the production method.
 
+use super::mapping::Stretch;
 use super::{
     turning, CountAudit, CountMethod, Level, LevelSet, LevelStatus, Method, RadialProblem,
     SolverError, SolverSettings, Wavefunction, WellFacts,
@@ -41,39 +42,41 @@ pub const DVR_POINTS_PER_WAVELENGTH: f64 = 4.0;
 /// e^-30); a level bound by less may be missed, and the count says in which box it was made.
 pub const DVR_BOX_BINDING: f64 = 1e-8;
 
-/// A grid uniform in x, r(x) = start + scale (e^x - 1), x_i = (i + 1) step, i = 0 .. points
-/// (psi vanishes at x = 0 and x = (points + 1) step, just outside).
+/// A grid uniform in x under the stretch r(x) = s + L (e^((x - s)/L) - 1) ([`Stretch`]):
+/// x_i = s + (i + 1) step, i = 0 .. points (psi vanishes at x = s and at x = s + (points + 1)
+/// step, just outside).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MappedGrid {
-    /// r at x = 0, bohr.
-    pub start: f64,
-    /// L, bohr: the step is nearly uniform for r - start below L.
-    pub scale: f64,
-    /// h, in x.
+    pub stretch: Stretch,
+    /// The step in x, bohr.
     pub step: f64,
     pub points: usize,
 }
 
 impl MappedGrid {
     fn x(&self, i: usize) -> f64 {
-        self.step * (i + 1) as f64
+        self.stretch.start + self.step * (i + 1) as f64
     }
     /// r_i, bohr.
     pub fn r(&self, i: usize) -> f64 {
-        self.start + self.scale * self.x(i).exp_m1()
+        self.stretch.r(self.x(i))
     }
-    /// dr/dx at point i, bohr.
+    /// dr/dx at point i.
     pub fn slope(&self, i: usize) -> f64 {
-        self.scale * self.x(i).exp()
+        self.stretch.at(self.x(i)).1
     }
     /// The quadrature weight of point i: int f dr = sum_i f(r_i) weight_i for smooth f that
     /// vanish at both ends.
     pub fn weight(&self, i: usize) -> f64 {
         self.slope(i) * self.step
     }
+    /// Inner end of the grid (where psi vanishes), bohr.
+    pub fn start(&self) -> f64 {
+        self.stretch.start
+    }
     /// Outer end of the grid (where psi vanishes), bohr.
     pub fn end(&self) -> f64 {
-        self.start + self.scale * (self.step * (self.points + 1) as f64).exp_m1()
+        self.stretch.r(self.x(self.points))
     }
 
     /// The grid over [start, end] whose local step h r'(x) stays below `local_step(r)`
@@ -110,11 +113,13 @@ impl MappedGrid {
         // The same extent in a whole number of steps, none coarser than the best found (psi
         // vanishes at both ends).
         let points = best.0.ceil().max(8.0) as usize;
-        let extent = (span / best_scale).ln_1p();
-        MappedGrid {
+        let stretch = Stretch {
             start,
             scale: best_scale,
-            step: extent / (points + 1) as f64,
+        };
+        MappedGrid {
+            stretch,
+            step: (stretch.x_of(end) - start) / (points + 1) as f64,
             points,
         }
     }
@@ -136,6 +141,11 @@ pub struct DvrSolution {
     pub grid: MappedGrid,
     /// Ascending, hartree.
     pub energies: Vec<f64>,
+    /// The rounding each energy may carry, hartree: the eigensolver is backward stable, its
+    /// values exact for a matrix within about eps sqrt(N) ||H|| of H (a typical, not a worst,
+    /// size), and ||H|| <= 3 max T_ii + max |V_ii| (the sinc kinetic matrix's largest
+    /// eigenvalue is pi^2 / (2 mu h^2), three times its diagonal).
+    pub rounding: f64,
     /// Column k holds chi of level k (sum_i chi_i^2 = 1); None when only energies were asked.
     vectors: Option<Mat<f64>>,
 }
@@ -190,8 +200,9 @@ pub fn diagonalise(
     let kinetic = 1.0 / (2.0 * mu * grid.step * grid.step);
     let pi2_3 = std::f64::consts::PI.powi(2) / 3.0;
     let slopes: Vec<f64> = (0..n).map(|i| grid.slope(i)).collect();
+    let schwarzian = grid.stretch.at(grid.stretch.start).2;
     let diagonal: Vec<f64> = (0..n)
-        .map(|i| problem.effective(grid.r(i)) + 1.0 / (8.0 * mu * slopes[i] * slopes[i]))
+        .map(|i| problem.effective(grid.r(i)) + schwarzian / (2.0 * mu * slopes[i] * slopes[i]))
         .collect();
     if let Some(i) = diagonal.iter().position(|v| !v.is_finite()) {
         return Err(SolverError::NotFinite { r: grid.r(i) });
@@ -205,6 +216,11 @@ pub fn diagonalise(
             kinetic * sign * 2.0 / (d * d * slopes[i] * slopes[j])
         }
     });
+    let largest_kinetic = (0..n)
+        .map(|i| kinetic * pi2_3 / (slopes[i] * slopes[i]))
+        .fold(0.0, f64::max);
+    let largest_potential = diagonal.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    let rounding = f64::EPSILON * (n as f64).sqrt() * (3.0 * largest_kinetic + largest_potential);
     let eigensolver = |e: faer::linalg::evd::EvdError| SolverError::Eigensolver(format!("{e:?}"));
     if vectors {
         let eigen = hamiltonian
@@ -214,6 +230,7 @@ pub fn diagonalise(
         Ok(DvrSolution {
             grid,
             energies: (0..n).map(|i| values[i]).collect(),
+            rounding,
             vectors: Some(eigen.U().to_owned()),
         })
     } else {
@@ -223,6 +240,7 @@ pub fn diagonalise(
         Ok(DvrSolution {
             grid,
             energies,
+            rounding,
             vectors: None,
         })
     }
@@ -232,7 +250,7 @@ pub fn diagonalise(
 /// sought by e^-30 to where a level bound by [`DVR_BOX_BINDING`] of the depth has (or the top
 /// level's own tail, for a curve without a limit), at `points_per_wavelength` of
 /// k(r) = sqrt(2 mu |E_top - V_eff(r)|) everywhere.
-pub fn automatic_grid(
+pub(super) fn automatic_grid(
     problem: &RadialProblem,
     facts: &WellFacts,
     cap: f64,
@@ -267,6 +285,34 @@ pub fn fitted_to(
     MappedGrid::fitted(start, end, &local_step)
 }
 
+/// The reference energies of `problem` (ascending, hartree) with their rounding, on the
+/// automatic grid with `density` times its points per wavelength and its box `box_factor`
+/// times as long: for showing that the reference itself has converged (grid refined, box
+/// lengthened).
+pub fn reference_energies(
+    problem: &RadialProblem,
+    settings: &SolverSettings,
+    density: f64,
+    box_factor: f64,
+) -> Result<DvrSolution, SolverError> {
+    let facts = super::well_facts(problem, settings)?;
+    let grid = automatic_grid(
+        problem,
+        &facts,
+        settings.outer_cap,
+        density * DVR_POINTS_PER_WAVELENGTH,
+    );
+    let end = grid.start() + box_factor * (grid.end() - grid.start());
+    let grid = fitted_to(
+        problem,
+        facts.top,
+        grid.start(),
+        end,
+        density * DVR_POINTS_PER_WAVELENGTH,
+    );
+    diagonalise(problem, grid, false)
+}
+
 pub(super) fn solve_dvr(
     problem: &RadialProblem,
     settings: &SolverSettings,
@@ -278,7 +324,7 @@ pub(super) fn solve_dvr(
         (range, Some(step)) => {
             let (lo, hi) = range.unwrap_or_else(|| {
                 let auto = automatic_grid(problem, facts, cap, DVR_POINTS_PER_WAVELENGTH);
-                (auto.start, auto.end())
+                (auto.start(), auto.end())
             });
             MappedGrid::fitted(lo, hi, &|_| step)
         }

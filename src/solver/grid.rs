@@ -98,12 +98,30 @@ pub fn outer_bound_for(
     cap: f64,
     decay_target: f64,
 ) -> f64 {
+    decay_walk(problem, energy, outer_turning, cap, decay_target).0
+}
+
+/// The decay integral int kappa dr from `outer_turning` to `end` (stopping early once past
+/// 60, far beyond any use).
+pub fn decay_to(problem: &RadialProblem, energy: f64, outer_turning: f64, end: f64) -> f64 {
+    decay_walk(problem, energy, outer_turning, end, 60.0).1
+}
+
+/// Walk outward from `outer_turning` until the decay integral reaches `target` or r reaches
+/// `cap`: (where it stopped, the decay reached).
+fn decay_walk(
+    problem: &RadialProblem,
+    energy: f64,
+    outer_turning: f64,
+    cap: f64,
+    target: f64,
+) -> (f64, f64) {
     let mu = problem.reduced_mass;
     let kappa_at = |r: f64| (2.0 * mu * (problem.effective(r) - energy).max(0.0)).sqrt();
     let mut r = outer_turning;
     let mut kappa = kappa_at(r);
     let mut decay = 0.0;
-    while decay < decay_target && r < cap {
+    while decay < target && r < cap {
         // Steps of half the decay length, at least 0.01 bohr, at most 5% of r; the integral by
         // the trapezoidal rule.
         let longest = 0.05 * r.max(1.0);
@@ -116,7 +134,7 @@ pub fn outer_bound_for(
         decay += 0.5 * (kappa + next) * dr;
         (r, kappa) = (r + dr, next);
     }
-    r.min(cap)
+    (r.min(cap), decay)
 }
 
 /// Grid step giving `points_per_wavelength` at the largest local momentum below `energy`.

@@ -17,7 +17,7 @@
 //! error estimate and a converged flag against the tolerance. This module knows nothing of
 //! post-processing or reports.
 
-mod dvr;
+pub mod dvr;
 pub mod grid;
 pub mod mapping;
 pub mod numerov;
@@ -111,7 +111,7 @@ impl Default for SolverSettings {
             highest_v: None,
             ceiling: None,
             keep_wavefunctions: false,
-            outer_cap: 2.0e4,
+            outer_cap: 1.0e6,
             distortion: true,
         }
     }
@@ -673,10 +673,14 @@ fn solve_numerov(
         for (v, slot) in solved.iter().enumerate() {
             let (seed, lo) = first_rung_seed(facts, &first_rungs);
             let hi = facts.top - floor;
+            // A seed at or past the top (the harmonic guess in a shallow well, or the
+            // extrapolation near the limit) would size the box for a level at the limit:
+            // halfway from the level below is a bound guess (the box grows if it is short).
+            let seed = if seed < hi { seed } else { 0.5 * (lo + hi) };
             // A seed is a guess: its box ends in the counting box (it may grow once the level
             // is known, see solve_one).
             let cap = counting.coarse.end();
-            let ladder = open_ladder(&job, v, seed.min(hi), (lo, hi), cap)?;
+            let ladder = open_ladder(&job, v, seed, (lo, hi), cap)?;
             first_rungs.push(ladder.rungs[0].energy);
             let job = &job;
             scope.spawn(move |_| {
@@ -753,6 +757,7 @@ fn open_ladder(
         base = covering(counting.coarse.start, end, counting.coarse.step);
         stretch = tail_stretch(problem, facts, guess, &base);
     }
+    // In x (the stretch starts where the box does, x = r there).
     let coarsest = match &stretch {
         Some(s) => covering(base.start, s.x_of(base.end()), base.step),
         None => base,
@@ -810,7 +815,21 @@ fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverEr
         }
         let outer = level.level.outer_turning_point;
         let held = grid::outer_bound_for(problem, level.level.energy, outer, cap, grid::DECAY_HELD);
-        if held > ladder.base.end() && ladder.base.end() < cap {
+        if held > ladder.base.end() && ladder.base.end() >= cap {
+            // Capped short of the decay it should hold: the wall at the box's end lifts the
+            // level by about 4 eps e^(-2 D) (eps its binding, D the decay integral to the
+            // wall: the squared amplitude the wall meets, times its kinetic scale); that is
+            // part of its error.
+            let binding = top - energy;
+            let decay = grid::decay_to(problem, level.level.energy, outer, ladder.base.end());
+            let mut level = level;
+            level.level.error_estimate += 4.0 * binding * (-2.0 * decay).exp();
+            if level.level.error_estimate > job.settings.tolerance {
+                level.level.status = LevelStatus::NotConverged;
+            }
+            return Ok(level);
+        }
+        if held > ladder.base.end() {
             // The first rung of the new box differs from the level by about what the first
             // rung of this one did: bracket it by a few times that (the grid's validity is
             // checked down to the bracket's foot).
@@ -857,10 +876,11 @@ fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
 /// Points per decay length 1/kappa in a stretched tail on the coarsest grid.
 const TAIL_POINTS_PER_DECAY_LENGTH: f64 = 4.0;
 
-/// The stretch for a level at `energy` in the box `base`: none for a level whose tail is short
-/// (its decay length is already resolved by a few plain steps); otherwise plain steps up to
-/// two decay lengths past the outer turning point, then steps growing to 1/4 of the
-/// asymptotic decay length 1/kappa, kappa = sqrt(2 mu (limit - E)).
+/// The stretch for a level at `energy` in the box `base` ([`mapping`]): from the box's start,
+/// with the step doubled at twice the outer turning point's distance (so the well keeps nearly
+/// the plain step) or later, so that at the box's end the step still resolves the asymptotic
+/// decay length 1/kappa, kappa = sqrt(2 mu (limit - E)), by TAIL_POINTS_PER_DECAY_LENGTH. None
+/// when the plain grid would need fewer than about twice the points (a short tail).
 fn tail_stretch(
     problem: &RadialProblem,
     facts: &WellFacts,
@@ -869,22 +889,20 @@ fn tail_stretch(
 ) -> Option<mapping::Stretch> {
     let limit = problem.curve.limit()?;
     let kappa = (2.0 * problem.reduced_mass * (limit - energy)).sqrt();
-    if kappa.is_nan() || kappa <= 0.0 {
-        return None;
-    }
-    let gain = 1.0 / (TAIL_POINTS_PER_DECAY_LENGTH * kappa * base.step);
-    if gain < 16.0 {
+    // The plain step must resolve the decay for the stretch to coarsen it.
+    let resolved = TAIL_POINTS_PER_DECAY_LENGTH * kappa * base.step;
+    if kappa.is_nan() || kappa <= 0.0 || resolved >= 1.0 {
         return None;
     }
     let (_, outer) = turning(problem, facts, energy, base.end());
-    let onset = outer + 2.0 / kappa;
-    // Narrow enough that at the turning point the steps have grown by less than 10%:
-    // (g - 1) exp(-(onset - outer)/w) <= 0.1.
-    let width = 2.0 / (kappa * (10.0 * gain).ln());
-    (onset + 4.0 / kappa < base.end() && width > 8.0 * base.step).then_some(mapping::Stretch {
-        onset,
-        width,
-        gain,
+    let extent = base.end() - base.start;
+    // h (1 + extent / L) <= 1 / (points kappa) at the end.
+    let scale = (2.0 * (outer - base.start)).max(resolved * extent / (1.0 - resolved));
+    // Plain points extent / h against stretched (L / h) ln(1 + extent / L): 2.5 times as
+    // many at extent = 4 L.
+    (extent > 4.0 * scale).then_some(mapping::Stretch {
+        start: base.start,
+        scale,
     })
 }
 
@@ -899,6 +917,8 @@ struct Rung {
     mean_inverse_r2: f64,
     distortion: f64,
     sextic: f64,
+    /// The energy's rounding ([`numerov::GridLevel::rounding`]).
+    rounding: f64,
 }
 
 /// Level v on grids with steps h, h/2, h/4, ... over one box (`coarsest`'s range), each
@@ -982,6 +1002,7 @@ impl Ladder {
             })?;
         let mut rung = Rung {
             energy: level.energy,
+            rounding: level.rounding,
             ..Rung::default()
         };
         rung.leading_error = numerov.leading_error(level.energy, &level.phi);
@@ -991,12 +1012,16 @@ impl Ladder {
         let shift = (hi - lo).min(1e-2 * (facts.top - facts.floor));
         self.bracket = (level.energy - shift, level.energy + shift);
         self.before_finest = self.finest.replace((level, numerov));
-        let Some(estimate) = ladder_estimate(&self.rungs, settings.tolerance) else {
+        let Some(mut estimate) = ladder_estimate(&self.rungs, settings.tolerance) else {
             return Ok(None);
         };
-        if estimate.error > settings.tolerance && k < last_rung {
+        // Rounding bounds what any further rung could gain: climb while the Richardson step
+        // exceeds both the tolerance and the rounding, then report both together.
+        let rounding = rounding_floor(&self.rungs[self.rungs.len() - estimate.used..], facts);
+        if estimate.error > settings.tolerance.max(rounding) && k < last_rung {
             return Ok(None);
         }
+        estimate.error += rounding;
         let (level, numerov) = self.finest.take().expect("a rung was just solved");
         // D_v and H_v come from the two finest rungs only: solved there, once.
         if settings.distortion {
@@ -1021,6 +1046,21 @@ impl Ladder {
     }
 }
 
+/// How many times its one-standard-deviation size the rounding a level carries is reported:
+/// the recurrence's random walk ([`numerov::GridLevel::rounding`]) is a typical size, not a
+/// bound, and the Richardson combination weighs the rungs by up to 1 + 1/15 + 1/63 (our own
+/// allowance).
+const ROUNDING_ALLOWANCE: f64 = 4.0;
+
+/// The rounding in a level's energy from the rungs that made it: the recurrence's, and that of
+/// the potential values, each about eps (|V_min| + |V - V_min|) (the curve's own values are
+/// absolute; the grid stores them relative to its minimum), of the size of the level's energy.
+fn rounding_floor(rungs: &[Rung], facts: &WellFacts) -> f64 {
+    let recurrence = rungs.iter().map(|r| r.rounding).fold(0.0, f64::max);
+    let energy = rungs.last().map_or(0.0, |r| r.energy.abs());
+    ROUNDING_ALLOWANCE * (recurrence + f64::EPSILON * (facts.curve_minimum.abs() + energy))
+}
+
 /// The Richardson value of a ladder and which rungs made it.
 struct LadderEstimate {
     /// Rungs used: 2 (one Richardson step) or 3 (two).
@@ -1036,8 +1076,9 @@ struct LadderEstimate {
 /// c h^8 and so on) are extrapolated with factors 63 and 255; the last step is the estimate,
 /// provided the corrected values converge as h^6 does: successive differences in a ratio
 /// near 2^6 = 64 (between 48 and 85). Otherwise (stretched tails of the least-bound levels
-/// can leave part of the h^4 term) the plain energies are extrapolated as h^4, h^6
-/// ([`richardson`]). Two rungs: one plain Richardson step, when it is below EARLY_EXIT of the
+/// can leave part of the h^4 term; a level near a barrier top mixes h^6 and h^8) the plain
+/// energies are extrapolated as h^4, h^6 ([`richardson`]) too, the scheme with the smaller
+/// last step is kept, and the error covers the two schemes' disagreement. Two rungs: one plain Richardson step, when it is below EARLY_EXIT of the
 /// tolerance.
 fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
     let energies: Vec<f64> = rungs.iter().map(|r| r.energy).collect();
@@ -1046,10 +1087,21 @@ fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
         let last = &rungs[n - 3..];
         let corrected: Vec<f64> = last.iter().map(|r| r.energy - r.leading_error).collect();
         let ratio = (corrected[1] - corrected[0]) / (corrected[2] - corrected[1]);
+        let with_correction = richardson_corrected([corrected[0], corrected[1], corrected[2]]);
         let (energy, error) = if (48.0..=85.0).contains(&ratio) {
-            richardson_corrected([corrected[0], corrected[1], corrected[2]])
+            with_correction
         } else {
-            richardson([energies[n - 3], energies[n - 2], energies[n - 1]])
+            // Outside the h^6 regime neither scheme can be trusted alone: keep the one whose
+            // last step is smaller, with an error that covers their disagreement (they model
+            // the error differently, so the worse one is off by at least that much).
+            let plain = richardson([energies[n - 3], energies[n - 2], energies[n - 1]]);
+            let disagreement = (plain.0 - with_correction.0).abs();
+            let (energy, step) = if with_correction.1 < plain.1 {
+                with_correction
+            } else {
+                plain
+            };
+            (energy, step.max(disagreement))
         };
         let three = LadderEstimate {
             used: 3,
