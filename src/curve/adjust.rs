@@ -118,6 +118,9 @@ impl PotentialCurve for Adjusted {
     fn long_range_power(&self) -> Option<f64> {
         self.base.long_range_power()
     }
+    fn is_piecewise(&self) -> bool {
+        self.base.is_piecewise()
+    }
     fn describe(&self) -> String {
         format!(
             "{}; depth scaled by {:.9} about the limit, shifted by {:.6e} bohr",

@@ -36,6 +36,12 @@ pub trait PotentialCurve: Send + Sync + std::fmt::Debug {
     fn long_range_power(&self) -> Option<f64> {
         None
     }
+    /// True for a curve made of pieces (a spline between points, joined to its extrapolations)
+    /// whose higher derivatives jump: a grid method's error then depends on where its points
+    /// fall, beyond what its error series in the step predicts. Analytic curves are smooth.
+    fn is_piecewise(&self) -> bool {
+        false
+    }
     /// A one-line description with the parameters, in the curve's own units.
     fn describe(&self) -> String;
     /// The curve-file model name (`morse`, `points`, ...).
@@ -154,9 +160,11 @@ pub fn find_well(curve: &dyn PotentialCurve) -> Result<Well, ShapeError> {
     find_well_with(curve, &|_| (0.0, 0.0, 0.0))
 }
 
-/// Classical turning points of V(r) + extra(r) at energy `energy`: the r on each side of the
-/// minimum `r_min` where the potential equals the energy, by bracketing outward then bisection.
-/// A side with no crossing within `[r_floor, r_ceiling]` gives None.
+/// Classical turning points of a potential at energy `energy`: the innermost and the outermost
+/// r where it crosses the energy, on either side of the minimum `r_min`, found by a scan in
+/// steps of 3% of r (so the outer turning point of a double well's level is the outer well's,
+/// not the barrier's), then bisection. A side with no crossing within `[r_floor, r_ceiling]`
+/// gives None.
 pub fn turning_points_with(
     potential: &dyn Fn(f64) -> f64,
     r_min: f64,
@@ -164,36 +172,43 @@ pub fn turning_points_with(
     r_floor: f64,
     r_ceiling: f64,
 ) -> (Option<f64>, Option<f64>) {
+    // The last crossing from below the energy to above it on the way to `towards`.
     let crossing = |towards: f64| -> Option<f64> {
-        let mut inside = r_min;
-        let mut step = 0.01 * r_min.max(0.1);
+        let outward = towards > r_min;
+        let mut last: Option<(f64, f64)> = None;
+        let mut r = r_min;
         loop {
-            let probe = if towards < r_min {
-                (inside - step).max(towards)
+            let step = 0.03 * r.abs().max(0.01 * r_min.abs().max(0.1));
+            let probe = if outward {
+                (r + step).min(towards)
             } else {
-                (inside + step).min(towards)
+                (r - step).max(towards)
             };
-            if potential(probe) >= energy {
-                let (mut a, mut b) = (inside, probe);
-                for _ in 0..200 {
-                    let m = 0.5 * (a + b);
-                    if potential(m) >= energy {
-                        b = m;
-                    } else {
-                        a = m;
-                    }
-                    if (b - a).abs() < 1e-13 * m.abs().max(1e-3) {
-                        break;
-                    }
-                }
-                return Some(0.5 * (a + b));
+            let value = potential(probe);
+            if !value.is_finite() {
+                break;
             }
+            if value >= energy && potential(r) < energy {
+                last = Some((r, probe));
+            }
+            r = probe;
             if probe == towards {
-                return None;
+                break;
             }
-            inside = probe;
-            step *= 1.5;
         }
+        let (mut a, mut b) = last?;
+        for _ in 0..200 {
+            let m = 0.5 * (a + b);
+            if potential(m) >= energy {
+                b = m;
+            } else {
+                a = m;
+            }
+            if (b - a).abs() < 1e-13 * m.abs().max(1e-3) {
+                break;
+            }
+        }
+        Some(0.5 * (a + b))
     };
     (crossing(r_floor), crossing(r_ceiling))
 }

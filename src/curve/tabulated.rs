@@ -470,6 +470,9 @@ impl PotentialCurve for TabulatedCurve {
     fn value(&self, r: f64) -> f64 {
         self.evaluate(r).0
     }
+    fn is_piecewise(&self) -> bool {
+        true
+    }
     fn derivative(&self, r: f64) -> f64 {
         self.evaluate(r).1
     }

@@ -369,6 +369,10 @@ const EARLY_EXIT: f64 = 0.1;
 /// convergence is quadratic, so the energy kept (with the last correction applied) is far
 /// closer, and a shot this close to the level changes <r> by a negligible fraction.
 const COOLEY_FRACTION: f64 = 1e-2;
+/// ... and below this fraction of the level's binding: a level bound by less than the tolerance
+/// (near the limit of a slow tail) would otherwise keep rungs whose Cooley residue, not their
+/// step, sets their differences, and the Richardson estimate would read that noise.
+const COOLEY_BINDING_FRACTION: f64 = 1e-3;
 /// Halvings of the coarsest step tried when a level misses the tolerance.
 const MAX_REFINEMENTS: usize = 4;
 
@@ -676,7 +680,15 @@ fn solve_numerov(
             // A seed at or past the top (the harmonic guess in a shallow well, or the
             // extrapolation near the limit) would size the box for a level at the limit:
             // halfway from the level below is a bound guess (the box grows if it is short).
-            let seed = if seed < hi { seed } else { 0.5 * (lo + hi) };
+            let seed = if seed < hi {
+                seed
+            } else if lo < hi {
+                0.5 * (lo + hi)
+            } else {
+                // The level below converged above the top on its first rung: a guess bound by
+                // 1e-6 of the depth (the box grows further if that is not enough).
+                hi - 1e-6 * (hi - (facts.floor - floor))
+            };
             // A seed is a guess: its box ends in the counting box (it may grow once the level
             // is known, see solve_one).
             let cap = counting.coarse.end();
@@ -755,7 +767,7 @@ fn open_ladder(
         let (_, outer) = turning(problem, facts, guess, cap);
         let end = grid::outer_bound(problem, guess, outer, cap);
         base = covering(counting.coarse.start, end, counting.coarse.step);
-        stretch = tail_stretch(problem, facts, guess, &base);
+        stretch = tail_stretch(problem, guess, &base);
     }
     // In x (the stretch starts where the box does, x = r there).
     let coarsest = match &stretch {
@@ -808,8 +820,17 @@ fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverEr
             if ladder.base.end() >= cap {
                 return Ok(unresolved(job, v, ladder.base.end()));
             }
-            let binding = (top - ladder.sized_for) / 16.0;
-            let bracket = (ladder.sized_for, top);
+            // This box holds a level bound by more than [`holdable_binding`] below the limit:
+            // this one is bound by less, so the next box is sized for at most a quarter of that,
+            // and for a sixteenth of the binding this one was sized for if that is less.
+            let held = 0.25 * holdable_binding(problem, facts, ladder.base.end());
+            let sized = top - ladder.sized_for;
+            let binding = if sized > 0.0 {
+                held.min(sized / 16.0)
+            } else {
+                held
+            };
+            let bracket = (top - 16.0 * binding, top);
             ladder = open_ladder(job, v, top - binding, bracket, cap)?;
             continue;
         }
@@ -844,15 +865,25 @@ fn solve_one(job: &Job, v: usize, mut ladder: Ladder) -> Result<Solved, SolverEr
     Ok(solved.unwrap_or_else(|| unresolved(job, v, ladder.base.end())))
 }
 
+/// The least binding (hartree) a level may have and still be held below the limit by a box
+/// reaching `reach` (bohr): its outer turning point must lie in the first half of the box past
+/// the well, limit - V_eff(r_e + L/2) with L = reach - r_e (for a power-law tail the turning
+/// point of a weakly bound level moves out as eps^(-1/n)), and its decay over the second half,
+/// kappa L/2 with kappa = sqrt(2 mu eps), must reach 1, eps = 2 / (mu L^2) (for a short-range
+/// tail a level reaches about its scattering length 1/kappa). A level the count places below
+/// the limit that such a box pushed above it is bound by less than this.
+fn holdable_binding(problem: &RadialProblem, facts: &WellFacts, reach: f64) -> f64 {
+    let length = reach - facts.r_floor;
+    let turning = facts.top - problem.effective(facts.r_floor + 0.5 * length);
+    turning.max(2.0 / (problem.reduced_mass * length * length))
+}
+
 /// Level v, which the count places below the limit but no box up to `reach` (bohr) held
-/// there. A level bound by eps has a tail of length about 1/sqrt(2 mu eps) (its scattering
-/// length, for binding small against the well); a box reaching R past the well holds it below
-/// the limit once R exceeds that, so this one is bound by less than 1 / (2 mu (R - r_e)^2). It
-/// is reported as the middle of that interval with half its width as the error.
+/// there: bound by less than [`holdable_binding`], reported as the middle of that interval with
+/// half its width as the error.
 fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
     let (problem, facts) = (job.problem, job.facts);
-    let length = reach - facts.r_floor;
-    let bound = 1.0 / (2.0 * problem.reduced_mass * length * length);
+    let bound = holdable_binding(problem, facts, reach);
     let (inner, _) = turning(problem, facts, facts.top, reach);
     Solved {
         level: Level {
@@ -876,14 +907,16 @@ fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
 /// Points per decay length 1/kappa in a stretched tail on the coarsest grid.
 const TAIL_POINTS_PER_DECAY_LENGTH: f64 = 4.0;
 
-/// The stretch for a level at `energy` in the box `base` ([`mapping`]): from the box's start,
-/// with the step doubled at twice the outer turning point's distance (so the well keeps nearly
-/// the plain step) or later, so that at the box's end the step still resolves the asymptotic
-/// decay length 1/kappa, kappa = sqrt(2 mu (limit - E)), by TAIL_POINTS_PER_DECAY_LENGTH. None
-/// when the plain grid would need fewer than about twice the points (a short tail).
+/// The stretch for a level at `energy` in the box `base` ([`mapping`]), from the box's start:
+/// its scale L is the least for which the stretched step h (1 + (r - s)/L) still gives, at
+/// every r, the points per local wavelength 2 pi / k(r), k = sqrt(2 mu |E - V_eff(r)|), that the
+/// plain step h gives at the bottom of the well (sampled at 2000 radii spaced geometrically), and
+/// at the box's end still resolves the asymptotic decay length 1/kappa, kappa = sqrt(2 mu
+/// (limit - E)), by TAIL_POINTS_PER_DECAY_LENGTH. In a power-law tail, where k falls off with r,
+/// the step then grows from the well on; near a well it stays plain. None when the plain grid
+/// would need fewer than about twice the points (a short tail).
 fn tail_stretch(
     problem: &RadialProblem,
-    facts: &WellFacts,
     energy: f64,
     base: &UniformGrid,
 ) -> Option<mapping::Stretch> {
@@ -894,10 +927,25 @@ fn tail_stretch(
     if kappa.is_nan() || kappa <= 0.0 || resolved >= 1.0 {
         return None;
     }
-    let (_, outer) = turning(problem, facts, energy, base.end());
     let extent = base.end() - base.start;
+    // The wavenumber the plain step resolves as the coarsest grid resolves the well's bottom.
+    let resolvable = 2.0 * std::f64::consts::PI / (NUMEROV_POINTS_PER_WAVELENGTH * base.step);
+    let samples = 2000;
+    let local = (0..=samples)
+        .map(|k| extent * (1e-6f64).powf(1.0 - k as f64 / samples as f64))
+        .map(|d| {
+            let wavenumber =
+                (2.0 * problem.reduced_mass * (energy - problem.effective(base.start + d)).abs())
+                    .sqrt();
+            if wavenumber < resolvable {
+                d / (resolvable / wavenumber - 1.0)
+            } else {
+                0.0
+            }
+        })
+        .fold(0.0f64, f64::max);
     // h (1 + extent / L) <= 1 / (points kappa) at the end.
-    let scale = (2.0 * (outer - base.start)).max(resolved * extent / (1.0 - resolved));
+    let scale = local.max(resolved * extent / (1.0 - resolved));
     // Plain points extent / h against stretched (L / h) ln(1 + extent / L): 2.5 times as
     // many at extent = 4 L.
     (extent > 4.0 * scale).then_some(mapping::Stretch {
@@ -994,8 +1042,13 @@ impl Ladder {
             [.., a] => Some(a.energy - 15.0 / 16.0 * a.leading_error),
             [] => seed,
         };
+        let binding = match seed {
+            Some(e) if facts.top_is_limit => (facts.top - facts.curve_minimum - e).abs(),
+            _ => f64::INFINITY,
+        };
+        let cooley = (COOLEY_FRACTION * settings.tolerance).min(COOLEY_BINDING_FRACTION * binding);
         let level = numerov
-            .solve_level(v, lo, hi, seed, COOLEY_FRACTION * settings.tolerance)
+            .solve_level(v, lo, hi, seed, cooley)
             .ok_or_else(|| SolverError::Bracket {
                 v: v as u32,
                 grid: format!("{:.4}..{:.4} bohr, step {:.3e}", g.start, g.end(), g.step),
@@ -1015,13 +1068,29 @@ impl Ladder {
         let Some(mut estimate) = ladder_estimate(&self.rungs, settings.tolerance) else {
             return Ok(None);
         };
-        // Rounding bounds what any further rung could gain: climb while the Richardson step
-        // exceeds both the tolerance and the rounding, then report both together.
+        estimate.error *= EXTRAPOLATION_SAFETY;
+        if problem.curve.is_piecewise() {
+            // The extrapolation past the leading-error correction rests on a smooth error
+            // series that a spline does not have: the last change of the corrected energy
+            // bounds what it could gain.
+            let n = self.rungs.len();
+            let corrected = |r: &Rung| r.energy - r.leading_error;
+            let last_change = (corrected(&self.rungs[n - 1]) - corrected(&self.rungs[n - 2])).abs();
+            estimate.error = estimate.error.max(last_change);
+        }
+        // Rounding bounds what any further rung could gain: climb while the estimate exceeds
+        // both the tolerance and the rounding, then report both together.
         let rounding = rounding_floor(&self.rungs[self.rungs.len() - estimate.used..], facts);
         if estimate.error > settings.tolerance.max(rounding) && k < last_rung {
             return Ok(None);
         }
         estimate.error += rounding;
+        if problem.curve.is_piecewise() {
+            estimate.error += self.alignment_error(job, v)?;
+            if estimate.error > settings.tolerance && k < last_rung {
+                return Ok(None);
+            }
+        }
         let (level, numerov) = self.finest.take().expect("a rung was just solved");
         // D_v and H_v come from the two finest rungs only: solved there, once.
         if settings.distortion {
@@ -1046,6 +1115,14 @@ impl Ladder {
     }
 }
 
+/// The factor on an extrapolation's own error estimate (its last step, or the disagreement of
+/// two schemes) that is reported as its bound: the estimate measures the error of the value
+/// before the last step, and the property test found levels (one of a near-degenerate
+/// tunnelling pair, whose energy is not yet analytic in the step) where the extrapolated
+/// value missed by 1.3 times it. A safety factor on an a posteriori estimate is common
+/// practice in adaptive error control; 2 is our choice.
+const EXTRAPOLATION_SAFETY: f64 = 2.0;
+
 /// How many times its one-standard-deviation size the rounding a level carries is reported:
 /// the recurrence's random walk ([`numerov::GridLevel::rounding`]) is a typical size, not a
 /// bound, and the Richardson combination weighs the rungs by up to 1 + 1/15 + 1/63 (our own
@@ -1061,6 +1138,54 @@ fn rounding_floor(rungs: &[Rung], facts: &WellFacts) -> f64 {
     ROUNDING_ALLOWANCE * (recurrence + f64::EPSILON * (facts.curve_minimum.abs() + energy))
 }
 
+impl Ladder {
+    /// On a piecewise curve (a spline, whose third derivative jumps at its points) Numerov's
+    /// error has a part g that depends on where the grid points fall against the knots, not
+    /// smoothly on the step, which Richardson extrapolation cannot see. The finest rung is
+    /// solved again on its grid shifted by a quarter, a half and three quarters of a step: g
+    /// varies with the shift about a mean the series already holds, so the largest change of the
+    /// corrected energy (E - L) among the shifts measures it (on a smooth curve the changes are
+    /// of the order of the series' next term only).
+    fn alignment_error(&self, job: &Job, v: usize) -> Result<f64, SolverError> {
+        let (problem, facts) = (job.problem, job.facts);
+        let Some((level, numerov)) = &self.finest else {
+            return Ok(0.0);
+        };
+        let corrected = |grid: &NumerovGrid, level: &numerov::GridLevel| {
+            level.energy - grid.leading_error(level.energy, &level.phi)
+        };
+        let reference = corrected(numerov, level);
+        let floor = facts.curve_minimum;
+        let potential = |r: f64| problem.effective(r) - floor;
+        let (lo, hi) = self.bracket;
+        let tolerance = COOLEY_FRACTION * job.settings.tolerance;
+        let mut largest = 0.0f64;
+        for fraction in [0.25, 0.5, 0.75] {
+            let grid = numerov.grid;
+            let shifted = UniformGrid {
+                start: grid.start + fraction * grid.step,
+                ..grid
+            };
+            let other = match &self.stretch {
+                Some(stretch) => {
+                    let built =
+                        NumerovGrid::stretched(shifted, problem.reduced_mass, stretch, &potential);
+                    check_factor(problem, facts, &shifted, finite(built)?, lo)?
+                }
+                None => check_grid(problem, facts, &shifted)?,
+            };
+            let Some(moved) = other.solve_level(v, lo, hi, Some(level.energy), tolerance) else {
+                return Err(SolverError::Bracket {
+                    v: v as u32,
+                    grid: format!("{shifted:?} (shifted by {fraction} of a step)"),
+                });
+            };
+            largest = largest.max((corrected(&other, &moved) - reference).abs());
+        }
+        Ok(largest)
+    }
+}
+
 /// The Richardson value of a ladder and which rungs made it.
 struct LadderEstimate {
     /// Rungs used: 2 (one Richardson step) or 3 (two).
@@ -1073,12 +1198,12 @@ struct LadderEstimate {
 /// whose step is not yet small enough to stand alone).
 ///
 /// Three rungs: the energies corrected by their leading error (E_h - L_h = E + b h^6 +
-/// c h^8 and so on) are extrapolated with factors 63 and 255; the last step is the estimate,
-/// provided the corrected values converge as h^6 does: successive differences in a ratio
-/// near 2^6 = 64 (between 48 and 85). Otherwise (stretched tails of the least-bound levels
-/// can leave part of the h^4 term; a level near a barrier top mixes h^6 and h^8) the plain
-/// energies are extrapolated as h^4, h^6 ([`richardson`]) too, the scheme with the smaller
-/// last step is kept, and the error covers the two schemes' disagreement. Two rungs: one plain Richardson step, when it is below EARLY_EXIT of the
+/// c h^8 and so on) are extrapolated with factors 63 and 255, and the plain energies as h^4,
+/// h^6 ([`richardson`]). The corrected extrapolation is kept when the corrected values
+/// converge as h^6 does (successive differences in a ratio near 2^6 = 64, between 48 and 85);
+/// otherwise (stretched tails of the least-bound levels can leave part of the h^4 term; a level
+/// near a barrier top mixes h^6 and h^8) the scheme with the smaller last step. The error is
+/// that scheme's last step, and at least the two schemes' disagreement. Two rungs: one plain Richardson step, when it is below EARLY_EXIT of the
 /// tolerance.
 fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
     let energies: Vec<f64> = rungs.iter().map(|r| r.energy).collect();
@@ -1088,21 +1213,28 @@ fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
         let corrected: Vec<f64> = last.iter().map(|r| r.energy - r.leading_error).collect();
         let ratio = (corrected[1] - corrected[0]) / (corrected[2] - corrected[1]);
         let with_correction = richardson_corrected([corrected[0], corrected[1], corrected[2]]);
-        let (energy, error) = if (48.0..=85.0).contains(&ratio) {
+        let plain = richardson([energies[n - 3], energies[n - 2], energies[n - 1]]);
+        // The two schemes model the error differently, so the worse is off by at least their
+        // disagreement, which the error covers. In the h^6 regime the corrected values are
+        // kept; outside it neither can be trusted alone and the one whose last step is
+        // smaller is kept. (A last step alone understates the error when the remainder after
+        // h^6 does not yet fall as h^8: 7e-16 hartree on a 230-level Morse against a step of
+        // 2e-16.)
+        let (energy, step) = if (48.0..=85.0).contains(&ratio) || with_correction.1 < plain.1 {
             with_correction
         } else {
-            // Outside the h^6 regime neither scheme can be trusted alone: keep the one whose
-            // last step is smaller, with an error that covers their disagreement (they model
-            // the error differently, so the worse one is off by at least that much).
-            let plain = richardson([energies[n - 3], energies[n - 2], energies[n - 1]]);
-            let disagreement = (plain.0 - with_correction.0).abs();
-            let (energy, step) = if with_correction.1 < plain.1 {
-                with_correction
-            } else {
-                plain
-            };
-            (energy, step.max(disagreement))
+            plain
         };
+        let mut error = step.max((plain.0 - with_correction.0).abs());
+        // The plain energies must converge as h^4 (differences in a ratio near 16) for either
+        // extrapolation to stand: a level of a near-degenerate pair (tunnelling in a double
+        // well) moves non-analytically in h while its discretisation error is comparable with
+        // the pair's splitting. Outside that regime the last change of the corrected energy
+        // bounds what the extrapolation could gain.
+        let plain_ratio = (energies[n - 2] - energies[n - 3]) / (energies[n - 1] - energies[n - 2]);
+        if !(12.0..=20.0).contains(&plain_ratio) {
+            error = error.max((corrected[2] - corrected[1]).abs());
+        }
         let three = LadderEstimate {
             used: 3,
             energy,
@@ -1111,9 +1243,9 @@ fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
         if error <= tolerance {
             return Some(three);
         }
-        return Some(two_rung(&energies[n - 2..], tolerance).unwrap_or(three));
+        return Some(two_rung(&rungs[n - 2..], tolerance).unwrap_or(three));
     }
-    (n == 2).then(|| two_rung(&energies, tolerance)).flatten()
+    (n == 2).then(|| two_rung(rungs, tolerance)).flatten()
 }
 
 /// Richardson extrapolation of corrected values at steps h, h/2, h/4 for an error series in
@@ -1125,13 +1257,28 @@ fn richardson_corrected(values: [f64; 3]) -> (f64, f64) {
     (best, (best - second).abs())
 }
 
-/// One Richardson step over the last two rungs, when it is below EARLY_EXIT of the tolerance.
-fn two_rung(energies: &[f64], tolerance: f64) -> Option<LadderEstimate> {
-    let step = (energies[1] - energies[0]) / 15.0;
-    (step.abs() <= EARLY_EXIT * tolerance).then_some(LadderEstimate {
+/// Two estimates from the last two rungs, when they agree within EARLY_EXIT of the tolerance:
+/// one Richardson step, E_h/2 + (E_h/2 - E_h) / 15, and the finer rung corrected by its leading
+/// error, E_h/2 - L_h/2. Both remove the h^4 term; they differ by what is left, so their
+/// disagreement is the error (at least the kept one's own step). The one with the smaller step
+/// (Richardson's, or the size of the correction) is kept. (A step alone was once the error:
+/// far in a stretched tail the first rungs can converge faster than h^4, and the Richardson
+/// step then overshoots by about itself.)
+fn two_rung(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
+    let (coarse, fine) = (&rungs[0], &rungs[1]);
+    let step = (fine.energy - coarse.energy) / 15.0;
+    let richardson = fine.energy + step;
+    let corrected = fine.energy - fine.leading_error;
+    let (energy, own) = if fine.leading_error.abs() < step.abs() {
+        (corrected, fine.leading_error.abs())
+    } else {
+        (richardson, step.abs())
+    };
+    let error = own.max((richardson - corrected).abs());
+    (error <= EARLY_EXIT * tolerance).then_some(LadderEstimate {
         used: 2,
-        energy: energies[1] + step,
-        error: step.abs(),
+        energy,
+        error,
     })
 }
 

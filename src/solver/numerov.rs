@@ -626,10 +626,14 @@ impl NumerovGrid {
                 // extra pass over the grid; only a disagreement is checked by Sturm counts.
                 let margin = (1e3 * correction.abs()).max(1e-11 * (1.0 + energy.abs()));
                 let rounding = shot.rounding;
-                let phi = self.normalise(shot);
-                let confirmed = sign_changes(&phi) == v
-                    || (self.count_below(energy - margin) == v
-                        && self.count_below(energy + margin) == v + 1);
+                let (phi, join_share) = self.normalise(shot);
+                let confirmed = if join_share < POOR_JOIN {
+                    self.isolates(v, energy, Self::threshold(tolerance, energy))
+                } else {
+                    sign_changes(&phi) == v
+                        || (self.count_below(energy - margin) == v
+                            && self.count_below(energy + margin) == v + 1)
+                };
                 return confirmed.then_some(GridLevel {
                     energy,
                     phi,
@@ -692,19 +696,23 @@ impl NumerovGrid {
             let shot = self.shoot(energy, buffer);
             let correction = shot.correction;
             let threshold = Self::threshold(tolerance, energy);
-            let converged = correction.abs() < threshold || hi - lo < threshold;
+            // A small step from a join where the level has little amplitude says little about
+            // the energy: it is believed only once the counts isolate the level that closely.
+            let settled = correction.abs() < threshold
+                && (shot_share(&shot) >= POOR_JOIN
+                    || self.isolates(v, energy + correction, threshold));
+            let converged = settled || hi - lo < threshold;
             if converged || iterations > 100 {
                 // Settled by the bracket alone (or not at all), the energy is known to within
                 // the bracket, and says so; the shot then still has a kink at its matching
                 // point (Cooley's step did not settle, typically a join far from most of the
                 // amplitude, as in one well of a double well), so the wavefunction is taken
                 // from inverse iteration at that energy instead.
-                let settled = correction.abs() < threshold;
                 let (energy, rounding, phi) = if settled {
-                    (energy + correction, shot.rounding, self.normalise(shot))
+                    (energy + correction, shot.rounding, self.normalise(shot).0)
                 } else {
                     let rounding = shot.rounding.max(hi - lo);
-                    let phi = self.normalise(shot);
+                    let phi = self.normalise(shot).0;
                     (energy, rounding, self.inverse_iteration(energy, &phi))
                 };
                 return Some(GridLevel {
@@ -715,7 +723,8 @@ impl NumerovGrid {
                 });
             }
             let mut next = energy + correction;
-            if !(next > lo && next < hi && next.is_finite()) {
+            if correction.abs() < threshold || !(next > lo && next < hi && next.is_finite()) {
+                // (A small step not believed, or one leaving the bracket: bisect.)
                 next = 0.5 * (lo + hi);
             }
             if self.count_below(next) <= v {
@@ -780,6 +789,22 @@ struct Shot {
     /// an energy, so the energy carries eps sqrt(N) (|a_m| + 2) Y_m^2 / (h^2 sum c psi^2)
     /// (our own estimate, one standard deviation of the walk).
     rounding: f64,
+}
+
+/// A join where the level's squared amplitude is below this fraction of its peak (one well of
+/// a double well, or a far tail) conditions Cooley's step poorly: a small step from there may
+/// leave the energy well off the level, so it is confirmed by Sturm counts (our own threshold:
+/// a join at the largest |Y| of an ordinary well carries a share of order 1/2).
+const POOR_JOIN: f64 = 1e-2;
+
+/// The share (Y_m / max |Y|)^2 of a shot's join, from its raw values (the inward part still
+/// unscaled).
+fn shot_share(shot: &Shot) -> f64 {
+    let m = shot.matching_point;
+    let (outward, inward) = shot.phi.split_at(m + 1);
+    let largest = |part: &[f64]| part.iter().fold(0.0f64, |a, p| a.max(p.abs()));
+    let peak = largest(outward).max(shot.inward_scale.abs() * largest(inward));
+    (outward[m] / peak).powi(2)
 }
 
 /// Start of a shot: psi is set to this at the first point inside each end.
@@ -998,7 +1023,14 @@ impl NumerovGrid {
         result
     }
 
-    fn normalise(&self, shot: Shot) -> Vec<f64> {
+    /// True when the Sturm counts put exactly v levels below `energy - margin` and v + 1
+    /// below `energy + margin`: level v lies within `margin` of `energy`.
+    fn isolates(&self, v: usize, energy: f64, margin: f64) -> bool {
+        self.count_below(energy - margin) == v && self.count_below(energy + margin) == v + 1
+    }
+
+    /// The shot joined and normalised, with its join's share (phi_m / max |phi|)^2.
+    fn normalise(&self, shot: Shot) -> (Vec<f64>, f64) {
         let mut psi = shot.phi;
         let (outward, inward) = psi.split_at_mut(shot.matching_point + 1);
         let norm = (self.grid.step * shot.norm / (2.0 * self.reduced_mass)).sqrt();
@@ -1012,9 +1044,10 @@ impl NumerovGrid {
             .find(|p| p.abs() > 1e-3 * peak)
             .map_or(1.0, |p| p.signum());
         let scale = first_lobe_sign / norm;
+        let share = (outward[shot.matching_point] / peak).powi(2);
         outward.iter_mut().for_each(|p| *p *= scale);
         inward.iter_mut().for_each(|p| *p *= scale * join);
-        psi
+        (psi, share)
     }
 }
 
@@ -1233,6 +1266,46 @@ mod tests {
             let residual = -y[i - 1] + a * y[i] - y[i + 1];
             assert!(residual.abs() < 1e-9 * largest, "point {i}: {residual:e}");
         }
+    }
+
+    #[test]
+    fn a_small_step_from_a_poor_join_is_not_taken_for_convergence() {
+        // Another of the property test's double wells (our own curve, mu = 19233), on the
+        // finest grid of level 9's ladder, from the seed and bracket the ladder gave: the level
+        // sits in one well while the shots join in the other, where a Cooley step of 1e-15 once
+        // left the energy 1.4e-12 hartree off the level. An accepted level must be isolated by
+        // the Sturm counts to within twice the Cooley threshold asked for.
+        let (depth, width, r_e) = (0.031604372820076165, 0.6216635471065033, 3.0);
+        let height = 0.5596322049456596 * depth;
+        let (centre, spread) = (
+            r_e + 0.5365436353194919 / width,
+            0.22247738626839447 / width,
+        );
+        let minimum = 4.501_267_863_652_916e-5;
+        let potential = |r: f64| {
+            depth * (1.0 - (-width * (r - r_e)).exp()).powi(2)
+                + height * (-((r - centre) / spread).powi(2)).exp()
+                - minimum
+        };
+        let mu = 10f64.powf(4.2840075461569604);
+        let grid = UniformGrid {
+            start: 1.1275757339525314,
+            step: 0.004508551256496468,
+            intervals: 1152,
+        };
+        let numerov = NumerovGrid::new(grid, mu, &potential);
+        let threshold = 4.556335252911937e-14;
+        let (lo, hi, seed) = (
+            1.343_995_284_509_954e-2,
+            1.407_114_004_792_833e-2,
+            0.013755583917942979,
+        );
+        let level = numerov
+            .solve_level(9, lo, hi, Some(seed), threshold)
+            .unwrap();
+        let isolated = numerov.count_below(level.energy - 2.0 * threshold) == 9
+            && numerov.count_below(level.energy + 2.0 * threshold) == 10;
+        assert!(isolated, "{:e}", level.energy);
     }
 
     #[test]
