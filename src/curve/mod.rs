@@ -93,21 +93,34 @@ pub fn find_well_with(
     curve: &dyn PotentialCurve,
     extra: &dyn Fn(f64) -> (f64, f64, f64),
 ) -> Result<Well, ShapeError> {
-    let (lo, hi) = curve.well_range();
+    let (lo, mut hi) = curve.well_range();
     let total = |r: f64| curve.value(r) + extra(r).0;
     let samples = 400;
-    let step = (hi - lo) / samples as f64;
-    let mut best = (f64::INFINITY, 0usize);
-    for i in 0..=samples {
-        let r = lo + step * i as f64;
-        let v = total(r);
-        if !v.is_finite() {
-            return Err(ShapeError::NotFinite { r });
+    // The scan, widened outward while its lowest value sits at its outer end (the well of the
+    // effective curve moves out with J: far out for a Coulomb-like tail), up to 2^12 times.
+    let (step, best) = {
+        let mut widenings = 0;
+        loop {
+            let step = (hi - lo) / samples as f64;
+            let mut best = (f64::INFINITY, 0usize);
+            for i in 0..=samples {
+                let r = lo + step * i as f64;
+                let v = total(r);
+                if !v.is_finite() {
+                    return Err(ShapeError::NotFinite { r });
+                }
+                if v < best.0 {
+                    best = (v, i);
+                }
+            }
+            if best.1 == samples && widenings < 12 && curve.limit().is_none_or(|l| best.0 < l) {
+                hi = lo + 2.0 * (hi - lo);
+                widenings += 1;
+                continue;
+            }
+            break (step, best);
         }
-        if v < best.0 {
-            best = (v, i);
-        }
-    }
+    };
     if best.1 == 0 || best.1 == samples {
         return Err(ShapeError::NoWell { lo, hi });
     }

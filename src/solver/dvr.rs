@@ -353,8 +353,9 @@ pub(super) fn solve_dvr(
             v: v as u32,
             j: problem.j,
             energy,
-            error_estimate,
-            status: if error_estimate <= settings.tolerance {
+            error_estimate: error_estimate + second.rounding,
+            precision_floor: second.rounding,
+            status: if error_estimate + second.rounding <= settings.tolerance {
                 LevelStatus::Converged
             } else {
                 LevelStatus::NotConverged
@@ -385,5 +386,6 @@ pub(super) fn solve_dvr(
             },
         },
         wavefunctions,
+        tolerance: settings.tolerance,
     })
 }

@@ -44,15 +44,16 @@ impl UniformGrid {
 
 /// Where the grid starts: inward from the inner turning point of `energy` until the decay
 /// integral reaches the target, the Numerov factor limit is met, or r reaches `floor`.
-/// Returns the start and whether the decay target was reached (if not, the step is too
-/// coarse for the wall: a finer step lets the grid reach further in).
+/// Returns the start and the decay reached there (the target when it was reached, or infinite
+/// at the floor, where nothing lies further in; short of the target, the step is too coarse
+/// for the wall: a finer step lets the grid reach further in).
 pub fn inner_bound(
     problem: &RadialProblem,
     energy: f64,
     inner_turning: f64,
     step: f64,
     v_floor: f64,
-) -> (f64, bool) {
+) -> (f64, f64) {
     let mu = problem.reduced_mass;
     let floor = 1e-3 * inner_turning;
     let mut r = inner_turning;
@@ -71,10 +72,17 @@ pub fn inner_bound(
         decay += (2.0 * mu * excess.max(0.0)).sqrt() * dr;
         r = next;
         if decay >= DECAY_TARGET {
-            return (r, true);
+            return (r, decay);
         }
     }
-    (r, r - dr <= floor)
+    (
+        r,
+        if r - dr <= floor {
+            f64::INFINITY
+        } else {
+            decay
+        },
+    )
 }
 
 /// Decay integral a box already sized for a level must hold past the level's outer turning

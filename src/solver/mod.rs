@@ -156,6 +156,10 @@ pub struct Level {
     pub j: u32,
     pub energy: f64,
     pub error_estimate: f64,
+    /// The part of the error estimate that double-precision rounding alone leaves (of the
+    /// recurrence and of the potential's values), hartree: no finer grid can remove it, so a
+    /// tolerance below it cannot be met.
+    pub precision_floor: f64,
     pub status: LevelStatus,
     pub inner_turning_point: f64,
     pub outer_turning_point: f64,
@@ -262,6 +266,8 @@ pub struct LevelSet {
     pub levels: Vec<Level>,
     pub audit: CountAudit,
     pub wavefunctions: Vec<Wavefunction>,
+    /// The tolerance the levels were solved to, hartree.
+    pub tolerance: f64,
 }
 
 impl LevelSet {
@@ -321,7 +327,12 @@ fn well_facts(
     settings: &SolverSettings,
 ) -> Result<WellFacts, SolverError> {
     let strength = problem.centrifugal_strength();
-    let bare = crate::curve::find_well(problem.curve)?;
+    // A curve whose own minimum lies at r = 0 (the centred oscillator) still has a well once
+    // the centrifugal term is added: its energies are then measured from that well's floor.
+    let bare = match crate::curve::find_well(problem.curve) {
+        Err(ShapeError::NoWell { .. }) if problem.j > problem.omega => None,
+        other => Some(other?),
+    };
     let effective = find_well_with(problem.curve, &|r| {
         let r2 = r * r;
         (
@@ -336,8 +347,9 @@ fn well_facts(
         }
         other => other.into(),
     })?;
+    let curve_minimum = bare.map_or(effective.v_min, |b| b.v_min);
     let (top, top_is_limit) = match (problem.curve.limit(), settings.ceiling) {
-        (_, Some(ceiling)) => (bare.v_min + ceiling, false),
+        (_, Some(ceiling)) => (curve_minimum + ceiling, false),
         (Some(limit), None) => (limit, true),
         (None, None) => {
             let omega = (effective.force_constant / problem.reduced_mass).sqrt();
@@ -354,7 +366,7 @@ fn well_facts(
         r_floor: effective.r_min,
         top,
         top_is_limit,
-        curve_minimum: bare.v_min,
+        curve_minimum,
         step_energy: top.max(effective.v_min + 2.0 * quantum),
         harmonic_quantum: quantum,
     })
@@ -581,12 +593,20 @@ fn counting_box(
         None
     };
     // The wall must be reached deep enough (decay target) before the Numerov factor limit
-    // stops the grid; an automatic step is halved until it is.
+    // stops the grid; an automatic step is halved until it is, or, once it is an eighth of the
+    // automatic step, until half the target is reached: a wall made by the centrifugal term
+    // alone (psi ~ r^(J+1)) damps slowly, and halving for it drives the step into rounding;
+    // what such a start leaves out is in each level's error (see finish_level).
     let mut step = step;
     let start = loop {
-        let (start, deep_enough) =
+        let (start, decay) =
             grid::inner_bound(problem, facts.top, inner_turning, step, facts.floor);
-        if deep_enough {
+        let enough = if step <= auto_step / 8.0 {
+            0.5 * grid::DECAY_TARGET
+        } else {
+            grid::DECAY_TARGET
+        };
+        if decay >= enough {
             break start;
         }
         if settings.step.is_some() || step < 1e-3 * auto_step {
@@ -721,6 +741,7 @@ fn solve_numerov(
         levels,
         audit,
         wavefunctions,
+        tolerance: settings.tolerance,
     })
 }
 
@@ -891,6 +912,7 @@ fn unresolved(job: &Job, v: usize, reach: f64) -> Solved {
             j: problem.j,
             energy: facts.top - 0.5 * bound,
             error_estimate: 0.5 * bound,
+            precision_floor: 0.0,
             status: LevelStatus::Unresolved,
             inner_turning_point: inner,
             outer_turning_point: f64::NAN,
@@ -1085,6 +1107,7 @@ impl Ladder {
             return Ok(None);
         }
         estimate.error += rounding;
+        estimate.rounding = rounding;
         if problem.curve.is_piecewise() {
             estimate.error += self.alignment_error(job, v)?;
             if estimate.error > settings.tolerance && k < last_rung {
@@ -1192,6 +1215,8 @@ struct LadderEstimate {
     used: usize,
     energy: f64,
     error: f64,
+    /// The part of the error that rounding alone leaves (set once the ladder stops).
+    rounding: f64,
 }
 
 /// The best estimate from the last rungs of a ladder (None with a single rung, or with two
@@ -1239,6 +1264,7 @@ fn ladder_estimate(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
             used: 3,
             energy,
             error,
+            rounding: 0.0,
         };
         if error <= tolerance {
             return Some(three);
@@ -1279,6 +1305,7 @@ fn two_rung(rungs: &[Rung], tolerance: f64) -> Option<LadderEstimate> {
         used: 2,
         energy,
         error,
+        rounding: 0.0,
     })
 }
 
@@ -1314,6 +1341,19 @@ fn finish_level(
     let mean_r = extrapolate(|r| r.mean_r);
     let inv_r2 = extrapolate(|r| r.mean_inverse_r2);
     let absolute = estimate.energy + facts.curve_minimum;
+    // The grid starts at r_0 > 0 with psi(r_0) = 0 in place of psi(0) = 0. Moving a node-fixing
+    // wall by dr moves a level by psi'^2 dr / (2 mu) (the Hellmann-Feynman theorem for the
+    // boundary), so the wall left out, from 0 to r_0, shifts it by at most about
+    // psi'(r_0)^2 r_0 / (2 mu) (psi growing as r^(J+1) from the origin): nothing for a
+    // repulsive wall that has damped psi by e^-30, but not so for a wall made by the
+    // centrifugal term alone (a curve without a repulsive core).
+    let start = finest.radius(0);
+    let slope = level.phi[1] / finest.grid.step;
+    let wall = slope * slope * start / (2.0 * problem.reduced_mass);
+    let estimate = LadderEstimate {
+        error: estimate.error + wall,
+        ..estimate
+    };
     let (inner, outer) = turning(
         problem,
         facts,
@@ -1326,6 +1366,7 @@ fn finish_level(
             j: problem.j,
             energy: absolute,
             error_estimate: estimate.error,
+            precision_floor: estimate.rounding,
             status: if estimate.error <= settings.tolerance {
                 LevelStatus::Converged
             } else {
