@@ -208,16 +208,23 @@ pub fn franck_condon(args: FranckCondonArgs) -> Result<ExitCode> {
             ),
             (
                 RadialProblem::new(lower.curve.as_ref(), mu, args.j_lower),
-                Some(range_lower.1),
+                // A lifetime sums the emission to every lower level, whatever is shown.
+                Some(if moment.is_some() {
+                    top_lower
+                } else {
+                    range_lower.1
+                }),
             ),
         ],
         &SolverSettings::default(),
     )
     .map_err(|e| solver_failure(&format!("{} and {}", upper.source, lower.source), e))?;
     let notes = grid_notes(&solved, &["upper", "lower"]);
-    let lower_levels = restrict(solved.pop().expect("two solved"), range_lower);
+    let every_lower = solved.pop().expect("two solved");
     let upper_levels = restrict(solved.pop().expect("two solved"), range_upper);
-    let set = bands(&upper_levels, &lower_levels, offset, moment.as_ref(), false);
+    let lower_levels = restrict(every_lower.clone(), range_lower);
+    let mut set = bands(&upper_levels, &lower_levels, offset, moment.as_ref(), false);
+    set.lifetimes = bands(&upper_levels, &every_lower, offset, moment.as_ref(), false).lifetimes;
     args.figure
         .save(&rungs::figures::builders::franck_condon_figure(
             &set,
@@ -239,7 +246,7 @@ pub fn franck_condon(args: FranckCondonArgs) -> Result<ExitCode> {
         }
     });
     print(
-        band_tables(&set, &title, units, args.output.format, range_lower),
+        band_tables(&set, &title, units, args.output.format, (0, top_lower)),
         notes,
         &args.output,
     )?;

@@ -186,37 +186,107 @@ pub fn fit_rotational(
     fit_in_v(set, v_range, order, |l| l.rotational_constant)
 }
 
-/// Birge-Sponer estimate of the dissociation energy from v = 0 (hartree): the sum of the
-/// spacings Delta G(v+1/2) up to the highest level, plus the area under the straight line
-/// fitted to the last `tail_points` spacings (against v + 1) from there to where it reaches
-/// zero (R.T. Birge and H. Sponer, Phys. Rev. 28, 259 (1926)). None when the fitted line
-/// does not fall to zero.
-pub fn birge_sponer(set: &LevelSet, tail_points: usize) -> Option<f64> {
-    let (delta, _) = spacings(set);
-    if delta.len() < 2 {
-        return None;
+/// A Birge-Sponer estimate of the dissociation energy from v = 0.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BirgeSponer {
+    /// D_0, hartree.
+    pub d0: f64,
+    /// Its standard error from the fitted line's covariance (the statistical part only: the
+    /// straight-line model itself is an assumption, usually the larger error).
+    pub standard_error: f64,
+    /// The spacings Delta G(v + 1/2) the line was fitted to, as (first v, last v) of their lower
+    /// levels.
+    pub fitted: (u32, u32),
+    /// The line's root-mean-square residual, hartree.
+    pub line_rms: f64,
+}
+
+/// Why a Birge-Sponer estimate cannot be made.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum BirgeSponerError {
+    #[error("the curve has no dissociation limit, so there is nothing for the Birge-Sponer line to reach")]
+    NoLimit,
+    #[error("the Birge-Sponer line needs at least 2 spacings (--birge-sponer-points {0})")]
+    TooFewPoints(usize),
+    #[error("the v range holds {0} levels; the Birge-Sponer line needs at least 3")]
+    TooFewLevels(usize),
+    #[error(
+        "the fitted spacings do not fall toward the limit (slope >= 0), so they never reach zero"
+    )]
+    NotFalling,
+}
+
+/// Birge-Sponer estimate of the dissociation energy from v = 0 (hartree) over the levels with
+/// v in `v_range`: E(top) - E(0) up to the highest level in the range, plus the area under the
+/// straight line fitted to its last `tail_points` spacings Delta G(v+1/2) (against u = v + 1)
+/// from there to where the line reaches zero (R.T. Birge and H. Sponer, Phys. Rev. 28, 259
+/// (1926)). The standard error propagates the line's covariance through the area, A(a, b) =
+/// a (u0 - f) + b (u0^2 - f^2)/2 with u0 = -a/b, f the last u plus 1/2, by its gradient
+/// (dA/da = u0 - f, dA/db = (f^2 - u0^2)/2; the delta method, common practice).
+pub fn birge_sponer(
+    set: &LevelSet,
+    v_range: (u32, u32),
+    tail_points: usize,
+) -> Result<BirgeSponer, BirgeSponerError> {
+    if set.limit.is_none() {
+        return Err(BirgeSponerError::NoLimit);
     }
-    let used = tail_points.clamp(2, delta.len());
+    if tail_points < 2 {
+        return Err(BirgeSponerError::TooFewPoints(tail_points));
+    }
+    let chosen: Vec<&crate::solver::Level> = set
+        .levels
+        .iter()
+        .filter(|l| l.v >= v_range.0 && l.v <= v_range.1)
+        .collect();
+    if chosen.len() < 3 {
+        return Err(BirgeSponerError::TooFewLevels(chosen.len()));
+    }
+    let delta: Vec<f64> = chosen
+        .windows(2)
+        .map(|w| w[1].energy - w[0].energy)
+        .collect();
+    let used = tail_points.min(delta.len());
     let start = delta.len() - used;
-    let x: Vec<f64> = (start..delta.len()).map(|v| v as f64 + 1.0).collect();
-    let line = polynomial_fit(&x, &delta[start..], 1).ok()?;
+    let lower_v = |k: usize| chosen[k].v;
+    let x: Vec<f64> = (start..delta.len())
+        .map(|k| f64::from(lower_v(k)) + 1.0)
+        .collect();
+    let design = Mat::from_fn(used, 2, |i, k| if k == 0 { 1.0 } else { x[i] });
+    let line =
+        linear_least_squares(&design, &delta[start..]).map_err(|_| BirgeSponerError::NotFalling)?;
     let (a, b) = (line.coefficients[0], line.coefficients[1]);
     if b >= 0.0 {
-        return None;
+        return Err(BirgeSponerError::NotFalling);
     }
-    let observed: f64 = delta.iter().sum();
-    let u_last = delta.len() as f64; // u = v + 1 of the last observed spacing's upper level
+    let ground = set.levels[0].energy;
+    let observed = chosen[chosen.len() - 1].energy - ground;
+    let last_u = f64::from(chosen[chosen.len() - 1].v);
+    let from = last_u + 0.5;
     let u_zero = -a / b;
-    let area = if u_zero > u_last {
-        // The unseen spacings at u = u_last + 1, u_last + 2, ... summed by the midpoint rule,
-        // i.e. the area under the line from u_last + 1/2 to its zero (exact for a straight
-        // line up to the fraction of a spacing at the zero).
-        let from = u_last + 0.5;
-        (a * (u_zero - from) + 0.5 * b * (u_zero * u_zero - from * from)).max(0.0)
+    let (area, gradient) = if u_zero > from {
+        // The unseen spacings at u = last + 1, last + 2, ... summed by the midpoint rule, i.e.
+        // the area under the line from last + 1/2 to its zero.
+        (
+            a * (u_zero - from) + 0.5 * b * (u_zero * u_zero - from * from),
+            [u_zero - from, 0.5 * (from * from - u_zero * u_zero)],
+        )
     } else {
-        0.0
+        (0.0, [0.0, 0.0])
     };
-    Some(observed + area)
+    let variance: f64 = (0..2)
+        .map(|i| {
+            (0..2)
+                .map(|j| gradient[i] * line.covariance[i][j] * gradient[j])
+                .sum::<f64>()
+        })
+        .sum();
+    Ok(BirgeSponer {
+        d0: observed + area,
+        standard_error: variance.max(0.0).sqrt(),
+        fitted: (lower_v(start), lower_v(delta.len() - 1)),
+        line_rms: (line.rss / used as f64).sqrt(),
+    })
 }
 
 #[cfg(test)]

@@ -603,11 +603,15 @@ fn constants(args: ConstantsArgs) -> Result<ExitCode> {
     let fail = |e: rungs::constants::FitError| bad_input(format!("{}: {e}", setup.source));
     let vibrational = rungs::constants::fit_vibrational(&set, range, args.order).map_err(fail)?;
     let rotational = rungs::constants::fit_rotational(&set, range, args.rotation_order).ok();
-    let birge = rungs::constants::birge_sponer(&set, args.birge_sponer_points);
+    let birge = rungs::constants::birge_sponer(&set, range, args.birge_sponer_points);
+    if let Err(e @ rungs::constants::BirgeSponerError::TooFewPoints(_)) = &birge {
+        return Err(bad_input(e.to_string()));
+    }
     let table = rungs::report::tables::constants_table(
         &vibrational,
         rotational.as_ref(),
-        birge,
+        birge.as_ref(),
+        &set,
         &setup.pair,
         units,
     );

@@ -275,6 +275,18 @@ fn count_notes(set: &LevelSet, units: DisplayUnits) -> Vec<String> {
             "J = {j}: NOT CONVERGED to the tolerance: v = {missed} (see the error column; a larger --tolerance, or no fixed --step)"
         ));
     }
+    let floor = set
+        .levels
+        .iter()
+        .map(|l| l.precision_floor)
+        .fold(0.0, f64::max);
+    if floor > set.tolerance {
+        notes.push(format!(
+            "J = {j}: the tolerance {:.1e} {eu} is below what double precision reaches for these levels: rounding alone leaves up to {:.1e} {eu}; ask for at least that",
+            units.energy.from_atomic(set.tolerance),
+            units.energy.from_atomic(floor)
+        ));
+    }
     let unresolved = listed(LevelStatus::Unresolved);
     if !unresolved.is_empty() {
         notes.push(format!(
@@ -320,7 +332,8 @@ pub fn wavefunction_table(set: &LevelSet, units: DisplayUnits) -> Table {
 pub fn constants_table(
     vibrational: &crate::constants::PolynomialFit,
     rotational: Option<&crate::constants::PolynomialFit>,
-    birge_sponer: Option<f64>,
+    birge_sponer: Result<&crate::constants::BirgeSponer, &crate::constants::BirgeSponerError>,
+    set: &LevelSet,
     pair: &Pair,
     units: DisplayUnits,
 ) -> Table {
@@ -363,11 +376,58 @@ pub fn constants_table(
     if let Some(fit) = rotational {
         push_fit(fit, &["B_e", "alpha_e", "gamma_e"], &[1.0, -1.0, 1.0], "B");
     }
-    if let Some(d0) = birge_sponer {
-        push("D_0_birge_sponer", d0, 0.0);
+    let mut notes = vec![
+        "G(v) = G_offset + omega_e (v+1/2) - omega_e_x_e (v+1/2)^2 + omega_e_y_e (v+1/2)^3 + ...; B_v = B_e - alpha_e (v+1/2) + gamma_e (v+1/2)^2".into(),
+        "standard errors are statistical: from the fit's residuals, assuming the polynomial is right".into(),
+    ];
+    // The levels are known far better than any polynomial can follow them; a residual above
+    // 1e-4 of omega_e is a visible failure of the expansion (our own threshold).
+    let omega = vibrational
+        .coefficients
+        .get(1)
+        .copied()
+        .unwrap_or(0.0)
+        .abs();
+    if vibrational.rms_residual > 1e-4 * omega {
+        notes.push(format!(
+            "WARNING: the order-{} polynomial leaves an rms residual of {:.3e} {eu} against levels known to {:.1e} {eu}: G(v) is not such a polynomial over these levels, so its coefficients are fit parameters, not the curve's constants; narrow the v range (the expansion holds near the bottom of the well) or change the order",
+            vibrational.coefficients.len() - 1,
+            units.energy.from_atomic(vibrational.rms_residual),
+            units.energy.from_atomic(set.levels.iter().map(|l| l.error_estimate).fold(0.0, f64::max)),
+        ));
+    }
+    match birge_sponer {
+        Ok(estimate) => {
+            push("D_0_birge_sponer", estimate.d0, estimate.standard_error);
+            notes.push(format!(
+                "Birge-Sponer: a straight line through the spacings above v = {} .. {} (rms {:.3e} {eu}), extrapolated to zero; its standard error is the line's only",
+                estimate.fitted.0,
+                estimate.fitted.1,
+                units.energy.from_atomic(estimate.line_rms)
+            ));
+            if let (Some(limit), Some(ground)) = (set.limit, set.levels.first()) {
+                let own = limit - ground.energy;
+                let miss = estimate.d0 - own;
+                notes.push(format!(
+                    "the curve's own D_0 (limit - E(v=0)) is {:.6} {eu}: the Birge-Sponer line misses it by {:+.3e} {eu}{}",
+                    units.energy.from_atomic(own),
+                    units.energy.from_atomic(miss),
+                    if miss.abs() > 3.0 * estimate.standard_error {
+                        " (WARNING: more than three standard errors; the spacings do not fall linearly to the limit)"
+                    } else {
+                        ""
+                    }
+                ));
+            }
+        }
+        Err(why) => notes.push(format!("no Birge-Sponer D_0: {why}")),
     }
     Table {
-        title: format!("spectroscopic constants of {} from {} levels", pair.label(), vibrational.points),
+        title: format!(
+            "spectroscopic constants of {} from {} levels",
+            pair.label(),
+            vibrational.points
+        ),
         columns: vec![
             Column::new("quantity", 0),
             Column::new("value", 8),
@@ -375,9 +435,7 @@ pub fn constants_table(
             Column::new("unit", 0),
         ],
         rows,
-        notes: vec![
-            "G(v) = G_offset + omega_e (v+1/2) - omega_e_x_e (v+1/2)^2 + omega_e_y_e (v+1/2)^3 + ...; B_v = B_e - alpha_e (v+1/2) + gamma_e (v+1/2)^2".into(),
-        ],
+        notes,
     }
 }
 
@@ -787,7 +845,7 @@ pub fn lifetimes_table(set: &crate::bands::BandSet, lower_range: (u32, u32)) -> 
             .map(|&(v, tau)| vec![Cell::Integer(v.into()), Cell::Number(1.0 / tau), Cell::Number(tau)])
             .collect(),
         notes: vec![format!(
-            "summed over the lower levels v'' = {}..{} computed; lower levels outside that range add to the rate",
+            "summed over every bound lower level, v'' = {}..{}, whatever range is shown (emission into the lower curve's continuum is not included)",
             lower_range.0, lower_range.1
         )],
     }
